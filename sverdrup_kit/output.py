@@ -1,0 +1,88 @@
+"""Writing results to CF-compliant NetCDF, whole or not at all."""
+
+from __future__ import annotations
+
+import datetime as _dt
+import os
+import tempfile
+from pathlib import Path
+
+import numpy as np
+import xarray as xr
+
+__all__ = ["write_netcdf", "PURPOSE"]
+
+#: What the results are for, written into every file.
+PURPOSE = (
+    "Climatological diagnostics of wind-driven circulation for research. Not a forecast or "
+    "nowcast of currents; not for navigation or marine operations."
+)
+
+
+def _prepare(ds: xr.Dataset) -> xr.Dataset:
+    from . import __version__
+
+    out = ds.copy()
+    for name, var in out.variables.items():
+        if var.dtype == bool:
+            out[name] = var.astype("int8").assign_attrs(var.attrs)
+        for key, value in list(var.attrs.items()):
+            if isinstance(value, (bool, np.bool_)):
+                out[name].attrs[key] = int(value)
+            elif value is None:
+                del out[name].attrs[key]
+    stamp = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+    history = f"{stamp} written by sverdrup_kit {__version__}"
+    if "history" in ds.attrs:
+        history = f"{history}\n{ds.attrs['history']}"
+    out.attrs = {k: (int(v) if isinstance(v, (bool, np.bool_)) else v)
+                 for k, v in ds.attrs.items() if v is not None}
+    out.attrs.update(Conventions="CF-1.8", history=history, purpose=PURPOSE)
+    return out
+
+
+def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = True):
+    """Write ``ds`` to ``path`` as CF-1.8 NetCDF-4, atomically.
+
+    The file is written under a temporary name in the same folder and renamed into place only
+    when complete, so a failure never leaves a half-written file. Global attributes record the
+    conventions, the history and what the results are for. ``ds`` is not modified.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        Results; dask-backed variables are computed while writing.
+    path : str or path-like
+        Destination ``.nc`` file; its folder must exist.
+    compute : bool, optional
+        Passed to :meth:`xarray.Dataset.to_netcdf`; must be True for the atomic rename.
+    """
+    if not isinstance(ds, xr.Dataset):
+        raise TypeError(
+            f"ds: expected an xarray.Dataset, found {type(ds).__name__}. Fix: wrap a DataArray "
+            "with da.to_dataset()."
+        )
+    path = Path(path)
+    if not path.parent.is_dir():
+        raise FileNotFoundError(
+            f"path: expected a file in an existing folder, found that '{path.parent}' does not "
+            f"exist. Fix: create it first, e.g. os.makedirs('{path.parent}')."
+        )
+    if not compute:
+        raise ValueError("compute: must be True; an atomic write needs the data now.")
+    out = _prepare(ds)
+    encoding = {
+        name: {"zlib": True, "complevel": 4}
+        for name, var in out.data_vars.items()
+        if np.issubdtype(var.dtype, np.number)
+    }
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
+    os.close(fd)
+    try:
+        out.to_netcdf(tmp, format="NETCDF4", encoding=encoding)
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.remove(tmp)
+        raise
+    return path
