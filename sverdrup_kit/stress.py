@@ -142,7 +142,8 @@ _LAWS = (
     DragLaw(
         "large-yeager-2004",
         _large_yeager_2004,
-        "1e3 Cd = 2.7/U + 0.142 + U/13.09, with U no lower than 0.5 m/s.",
+        "1e3 Cd = 2.7/U + 0.142 + U/13.09, with U no lower than 0.5 m/s. No strong-wind cap: "
+        "Cd grows without bound (2.74 at 33 m/s); large-yeager-2009 caps it.",
         "Large, W. G. and S. G. Yeager (2004), Diurnal to decadal global forcing for ocean and "
         "sea-ice models: the data sets and flux climatologies, NCAR Technical Note "
         "NCAR/TN-460+STR.",
@@ -244,7 +245,8 @@ def drag_coefficient(speed, *, drag="large-pond-1981"):
     drag : str or float, optional
         A key of :data:`DRAG_LAWS` -- ``"large-pond-1981"`` (default),
         ``"large-pond-1981-continuous"``, ``"trenberth-1990"``, ``"large-yeager-2004"``,
-        ``"large-yeager-2009"`` -- or a constant drag coefficient (e.g. ``1.3e-3``).
+        ``"large-yeager-2009"`` -- or a constant drag coefficient (e.g. ``1.3e-3``), or a
+        :class:`DragLaw` of your own. Names are matched ignoring case, spaces and underscores.
 
     Returns
     -------
@@ -275,7 +277,8 @@ def drag_coefficient(speed, *, drag="large-pond-1981"):
         :math:`10^3 C_D = 2.18` for :math:`U \le 1`, :math:`0.62 + 1.56/U` for :math:`1 < U < 3`,
         then ``large-pond-1981-continuous``; continuous at 1, 3 and 10 m s-1.
     ``large-yeager-2004``
-        :math:`10^3 C_D = 2.7/U + 0.142 + U/13.09`.
+        :math:`10^3 C_D = 2.7/U + 0.142 + U/13.09`, as published, with no strong-wind cap
+        (it reaches 2.74e-3 at 33 m s-1 and keeps growing; prefer ``large-yeager-2009`` there).
     ``large-yeager-2009``
         :math:`10^3 C_D = 2.7/U + 0.142 + U/13.09 - 3.14807\times10^{-10}U^6` for
         :math:`U < 33`, :math:`2.34` above (their eq. 11).
