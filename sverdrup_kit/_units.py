@@ -10,11 +10,14 @@ import re
 
 import xarray as xr
 
+KNOT = 1852.0 / 3600.0
+
 SPEED = {
     "m/s": 1.0, "ms-1": 1.0, "m/sec": 1.0, "meter/second": 1.0, "meters/second": 1.0,
     "metre/second": 1.0, "metres/second": 1.0, "mps": 1.0, "meterspersecond": 1.0,
     "metrespersecond": 1.0, "ms**-1": 1.0, "m1s-1": 1.0,
-    "knots": 0.514444, "knot": 0.514444, "kt": 0.514444, "kts": 0.514444, "kn": 0.514444,
+    # International knot: 1852 m per hour (exact by definition).
+    "knots": KNOT, "knot": KNOT, "kt": KNOT, "kts": KNOT, "kn": KNOT,
     "cm/s": 0.01, "cms-1": 0.01, "km/h": 1.0 / 3.6, "kmh-1": 1.0 / 3.6, "kph": 1.0 / 3.6,
 }
 STRESS = {
@@ -24,7 +27,11 @@ STRESS = {
     "dyn/cm2": 0.1, "dyne/cm2": 0.1, "dyncm-2": 0.1, "dynecm-2": 0.1, "dynes/cm2": 0.1,
     "dyn/cm**2": 0.1, "dyne/cm**2": 0.1, "dyn/cm^2": 0.1,
     "mpa": 1e-3, "10-3pa": 1e-3, "10**-3pa": 1e-3,
+    "nm**-2": 1.0, "dyncm**-2": 0.1, "dynecm**-2": 0.1, "dynes/cm**2": 0.1, "dynescm-2": 0.1,
 }
+# Folding to lower case would read megapascal ("MPa") as millipascal ("mPa"): these keys must
+# match the original spelling exactly (spaces removed).
+CASE_SENSITIVE = {"mpa": "mPa"}
 KIND = {"speed": (SPEED, "m s-1", "a wind speed"), "stress": (STRESS, "Pa", "a stress")}
 
 
@@ -53,7 +60,8 @@ def si_factor(units: str | None, kind: str, *, argname: str) -> float:
             f"{argname}.attrs['units'] = '{canon}'."
         )
     key = _fold(units)
-    if key not in table:
+    exact = CASE_SENSITIVE.get(key)
+    if key not in table or (exact is not None and str(units).replace(" ", "") != exact):
         raise UnitsError(
             f"{argname}: expected units of {what} such as {sorted(set(_examples(kind)))}, found "
             f"'{units}'. Fix: convert the field yourself and set attrs['units'] = '{canon}'."
