@@ -1,7 +1,22 @@
-"""sverdrup_kit: wind-driven ocean circulation diagnostics from gridded wind climatologies."""
+"""sverdrup_kit: wind-driven ocean circulation diagnostics from gridded wind climatologies.
+
+The data path, one module per step: :mod:`.sources` (open_winds, open_stress) ->
+:mod:`.stress` (drag laws, wind_stress) -> :mod:`.operators` and :mod:`.ekman` (curl, Ekman
+transport and pumping on the sphere) -> :mod:`.sverdrup` (westward integral from eastern
+coasts, per basin) -> :mod:`.boundary_layers` and :mod:`.barotropic` (Stommel and Munk
+closure) -> :mod:`.observations`, :mod:`.plotting`, :mod:`.output`.
+
+Results are climatological diagnostics for research, not forecasts for navigation or
+marine operations.
+"""
 
 from .constants import AIR_DENSITY, EARTH_RADIUS, OMEGA, RHO0, SVERDRUP
+from .ekman import ekman
 from .grid import SphericalGrid, beta_parameter, coriolis_parameter
+from .observations import boundary_current_observations
 from .operators import curl_on_sphere, wind_stress_curl
+from .output import write_netcdf
+from .sources import open_stress, open_winds
+from .stress import DRAG_LAWS, DragLaw, MonthlyMeanWindWarning, drag_coefficient, wind_stress
 
 __version__ = "0.1.0"
