@@ -574,10 +574,11 @@ def _normalise_field(name, da: xr.DataArray, field: _Field, func: str, steps: li
         "standard_name": field.standard_name,
         "long_name": field.long_name,
         "units": unit_out,
-        "source_variable": str(name),
+        # Kept from an earlier pass, so that reopening our own output changes nothing.
+        "source_variable": str(da.attrs.get("source_variable", name)),
     }
     if units is not None:
-        attrs["source_units"] = str(units)
+        attrs["source_units"] = str(da.attrs.get("source_units", units))
     out = out.rename(field.out)
     out.attrs = attrs
     out.encoding = {}
