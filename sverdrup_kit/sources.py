@@ -119,7 +119,7 @@ def open_winds(source, *, u=None, v=None, speed=None) -> xr.Dataset:
     Parameters
     ----------
     source : str, os.PathLike, list of paths, xarray.Dataset, tuple or dict of xarray.DataArray
-        A netCDF path (a glob pattern or a list of paths is combined along time with
+        A netCDF path (a glob pattern, list or tuple of paths is combined along time with
         :func:`xarray.open_mfdataset`), a URL that xarray can open (OPeNDAP), a Dataset, or the
         components themselves as ``(u, v)``, ``(u, v, speed)`` or
         ``{'u': u, 'v': v, 'speed': speed}``.
@@ -166,7 +166,9 @@ def open_winds(source, *, u=None, v=None, speed=None) -> xr.Dataset:
     >>> winds = open_winds("coads_climatology.cdf")  # doctest: +SKIP
     >>> winds.u.groupby("time.month").mean()  # doctest: +SKIP
     """
-    if isinstance(source, (tuple, dict)):
+    if isinstance(source, dict) or (
+        isinstance(source, tuple) and any(isinstance(s, xr.DataArray) for s in source)
+    ):
         if any(k is not None for k in (u, v, speed)):
             raise TypeError(
                 "open_winds: u, v, speed name variables inside a file or Dataset; with a tuple "
@@ -182,7 +184,7 @@ def open_stress(source, *, taux=None, tauy=None) -> xr.Dataset:
 
     Parameters
     ----------
-    source : str, os.PathLike, list of paths or xarray.Dataset
+    source : str, os.PathLike, list or tuple of paths, or xarray.Dataset
         A netCDF path, glob pattern or list of paths, a URL that xarray can open, or a Dataset.
     taux, tauy : str, optional
         Names of the eastward and northward stress in ``source`` when they cannot be found by
@@ -249,9 +251,17 @@ def _as_dataset(source, func, warned) -> tuple[xr.Dataset, bool]:
             f"DataArray. Fix: pass both components, e.g. {func}(xr.Dataset({{...}}))"
             f"{' or open_winds((u, v))' if func == 'open_winds' else ''}."
         )
-    if isinstance(source, (list,)) or (isinstance(source, str) and any(c in source for c in "*?[")
-                                       and "://" not in source):
-        paths = sorted(glob.glob(source)) if isinstance(source, str) else [str(p) for p in source]
+    if isinstance(source, (list, tuple)) or (
+        isinstance(source, str) and any(c in source for c in "*?[") and "://" not in source
+    ):
+        paths = sorted(glob.glob(source)) if isinstance(source, str) else list(source)
+        bad = [p for p in paths if not isinstance(p, (str, os.PathLike))]
+        if bad:
+            raise TypeError(
+                f"{func}: source: expected a list of paths, found items of type "
+                f"{sorted({type(p).__name__ for p in bad})}. Fix: pass paths only, or one Dataset."
+            )
+        paths = [os.fspath(p) for p in paths]
         if not paths:
             raise FileNotFoundError(
                 f"{func}: source: expected files matching {source!r}, found none. Fix: check the "
@@ -296,7 +306,7 @@ def _require_file(path, func) -> None:
     if not Path(path).is_file():
         raise FileNotFoundError(
             f"{func}: source: expected an existing file, found no file at {str(path)!r}. Fix: "
-            "check the path; real-data files come from `python -m data_recipes.marine_climatology`."
+            f"check the path and the working folder ({os.getcwd()})."
         )
 
 

@@ -238,6 +238,17 @@ def test_year_zero_climatology_warns_once_and_groups_by_month(tmp_path):
     assert "fallback calendar" in ds.attrs["normalisation"]
 
 
+def test_months_since_year_zero_falls_back_to_360_day():
+    src = wind_dataset(ntime=12, time_units="months since 0000-01-01")
+    src = src.assign_coords(TIME=("TIME", np.arange(12) + 0.5,
+                                  {"units": "months since 0000-01-01"}))
+    with pytest.warns(TimeDecodingWarning, match="360_day"):
+        ds = open_winds(src)
+    # CF: 'months since' is only exact in a 360_day calendar (CF conventions 1.11, sec. 4.4.1)
+    np.testing.assert_array_equal(ds.time.dt.month.values, np.arange(1, 13))
+    assert ds.time.values[0].calendar == "360_day"
+
+
 def test_undecodable_twelve_steps_get_month_coordinate():
     src = wind_dataset(ntime=12, time_units="month")
     with pytest.warns(TimeDecodingWarning, match="month"):
@@ -266,6 +277,7 @@ def test_several_files_combined_along_time(tmp_path):
                                                      "1980-04-01"]
     same = open_winds(str(tmp_path / "*.nc"))  # a glob pattern does the same
     xr.testing.assert_identical(ds.u.compute(), same.u.compute())
+    xr.testing.assert_identical(open_winds(tuple(paths)).u.compute(), same.u.compute())
 
 
 # ---------------------------------------------------------------------------------------------
@@ -420,6 +432,24 @@ def test_opening_a_file_computes_nothing_and_stays_lazy(tmp_path):
         assert stress.taux.chunksizes["time"] == (4, 4, 4)  # the caller's chunks are kept
         ds.u.mean().compute()
     assert counter.calls > 0  # the counter does see computes
+
+
+def test_same_numbers_in_memory_chunked_and_distributed(tmp_path):
+    distributed = pytest.importorskip("distributed")
+    src = wind_dataset(lat=np.arange(80.0, -81.0, -20.0), lon=np.arange(20.0, 380.0, 30.0),
+                       ntime=6, units="knots")
+    src["UWND"][1, 2, 3] = FILL
+    path = write(src, tmp_path / "w.nc")
+    memory = open_winds(src)
+    chunked = open_winds(src.chunk({"TIME": 2, "LATY": 3}))
+    assert chunked.u.chunks is not None
+    # derived: the same operations on the same numbers
+    xr.testing.assert_identical(memory.u, chunked.u.compute())
+    with distributed.Client(processes=False, n_workers=1, threads_per_worker=2,
+                            dashboard_address=None):
+        on_cluster = open_winds(path).compute()
+    np.testing.assert_array_equal(memory.u.values, on_cluster.u.values)
+    np.testing.assert_array_equal(memory.v.values, on_cluster.v.values)
 
 
 def test_in_memory_input_stays_in_memory():
