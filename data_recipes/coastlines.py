@@ -1,10 +1,10 @@
 """Recipe: crude GSHHS coastline shapefiles for offline maps, from Debian's ``python-cartopy-data``.
 
 Run ``python -m data_recipes.coastlines`` to copy the package's ``shapefiles/gshhs`` folder into
-``$SVERDRUP_KIT_DATA/cartopy/shapefiles/gshhs``; then ``CARTOPY_DATA_DIR=$SVERDRUP_KIT_DATA/cartopy``
-lets cartopy draw GSHHS coastlines at scale 'c' without a network. Only the shapefiles are taken
-from the archive; nothing is installed. :func:`data_dir` returns the folder for
-``CARTOPY_DATA_DIR`` or says how to fetch it.
+``$SVERDRUP_KIT_DATA/cartopy/shapefiles/gshhs``; then
+``CARTOPY_DATA_DIR=$SVERDRUP_KIT_DATA/cartopy`` lets cartopy draw GSHHS coastlines at scale 'c'
+without a network. Only the shapefiles are taken from the archive; nothing is installed.
+:func:`data_dir` returns the folder for ``CARTOPY_DATA_DIR`` or says how to fetch it.
 """
 
 from __future__ import annotations
@@ -41,7 +41,9 @@ def _check(folder: Path) -> int:
     """Check that ``folder`` holds the crude level-1 shapefile with polygons; return their count."""
     missing = [f for f in REQUIRED if not (folder / f).is_file()]
     if missing:
-        raise _debian.RecipeError(f"gshhs: expected {list(REQUIRED)} in {folder}, missing {missing}.")
+        raise _debian.RecipeError(
+            f"gshhs: expected {list(REQUIRED)} in {folder}, missing {missing}."
+        )
     n = _count_records(folder / REQUIRED[0])
     if n < 1:
         raise _debian.RecipeError(f"gshhs: {REQUIRED[0]} in {folder} has no polygons.")

@@ -155,7 +155,7 @@ def fetch(*, force: bool = False, out=sys.stdout) -> dict[str, Path]:
                     "dims": spec.dims,
                 }
                 _debian.write_manifest(manifest_path, manifest)
-                note = "" if digest == spec.sha256 else " (hash differs from the tested 7.6.0-5 copy)"
+                note = "" if digest == spec.sha256 else " (differs from the tested 7.6.0-5 copy)"
                 print(
                     f"{name}: fetched from Debian {PACKAGE} {version}, verified dims "
                     f"{spec.dims}, sha256 {digest[:12]}...{note} -> {folder / name}",
@@ -189,9 +189,7 @@ def path(name: str) -> Path:
 
 
 def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(
-        prog=COMMAND, description=__doc__.split("\n\n")[0]
-    )
+    parser = argparse.ArgumentParser(prog=COMMAND, description=__doc__.split("\n\n")[0])
     parser.add_argument("--force", action="store_true", help="download again even if cached")
     args = parser.parse_args(argv)
     try:

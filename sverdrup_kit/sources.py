@@ -496,8 +496,8 @@ def _decode_time(obj, warned: list[tuple[str, str]]):
             f"time '{name}' decoded with fallback calendar '{cal}' (units '{units}')",
         ))
         return obj.assign_coords({name: decoded})
-    return _month_fallback(obj, name, f"no calendar decodes units '{units}' ({_reason(units, first)})",
-                           warned)
+    why = f"no calendar decodes units '{units}' ({_reason(units, first)})"
+    return _month_fallback(obj, name, why, warned)
 
 
 def _reason(units: str, err) -> str:
@@ -617,7 +617,8 @@ def _assemble(picked, fields, func, described, global_attrs, warned) -> xr.Datas
         _check_same_grid(outs[first], outs[key], (first, key), func)
     name, layout, renames = layouts[first]
     if renames:
-        steps.append("dimensions renamed " + ", ".join(f"'{a}' -> '{b}'" for a, b in renames.items()))
+        pairs = ", ".join(f"'{a}' -> '{b}'" for a, b in renames.items())
+        steps.append(f"dimensions renamed {pairs}")
     if layout.lat_order[0] != 0:
         steps.append("latitude reversed to ascending")
     if not np.array_equal(layout.lon_order, np.arange(layout.lon_order.size)):
