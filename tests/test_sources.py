@@ -375,6 +375,28 @@ def test_duplicate_coordinates():
         open_winds(wind_dataset(lat=[-20.0, 0.0, 0.0, 20.0]))
 
 
+def test_files_on_different_grids_refused(tmp_path):
+    a = write(wind_dataset(), tmp_path / "a.nc")
+    b = write(wind_dataset(lat=np.arange(-81.0, 80.0, 20.0)).assign_coords(
+        TIME=("TIME", [100.0, 130.0, 160.0], {"units": "days since 1980-01-01"})), tmp_path / "b.nc")
+    with pytest.raises(GridError, match=r"source: expected files on one grid.*Fix"):
+        open_winds([a, b])
+
+
+def test_url_goes_to_xarray_untouched(monkeypatch):
+    seen = {}
+
+    def fake_open_dataset(target, **kwargs):
+        seen.update(target=target, **kwargs)
+        return wind_dataset()
+
+    monkeypatch.setattr(xr, "open_dataset", fake_open_dataset)
+    ds = open_winds("https://example.invalid/opendap/winds")  # never contacted: patched above
+    assert seen["target"] == "https://example.invalid/opendap/winds"
+    assert seen["decode_times"] is False
+    assert ds.u.chunks is not None and ds.attrs["input"] == seen["target"]
+
+
 def test_bad_sources():
     with pytest.raises(FileNotFoundError, match="source.*no file.*Fix"):
         open_winds("/nonexistent/winds.nc")
