@@ -377,8 +377,9 @@ def test_duplicate_coordinates():
 
 def test_files_on_different_grids_refused(tmp_path):
     a = write(wind_dataset(), tmp_path / "a.nc")
-    b = write(wind_dataset(lat=np.arange(-81.0, 80.0, 20.0)).assign_coords(
-        TIME=("TIME", [100.0, 130.0, 160.0], {"units": "days since 1980-01-01"})), tmp_path / "b.nc")
+    later = ("TIME", [100.0, 130.0, 160.0], {"units": "days since 1980-01-01"})
+    shifted = wind_dataset(lat=np.arange(-81.0, 80.0, 20.0)).assign_coords(TIME=later)
+    b = write(shifted, tmp_path / "b.nc")
     with pytest.raises(GridError, match=r"source: expected files on one grid.*Fix"):
         open_winds([a, b])
 
