@@ -491,8 +491,9 @@ def _decode_time(obj, warned: list[tuple[str, str]]):
             f"time coordinate '{name}': units '{units}' with calendar '{calendar}' cannot be "
             f"decoded ({_reason(units, first)}); decoded with calendar '{cal}' (cftime) instead. "
             f"Months and days are as the file gives them, so grouping by "
-            f"'time.month' works; for a climatology the year is a placeholder. Fix: set "
-            f"attrs['calendar'] on the time variable to silence this.",
+            f"'time.month' works; for a climatology the year is a placeholder. Fix: give the "
+            f"time variable the calendar attribute that fits, e.g. calendar='{cal}', to "
+            f"silence this.",
             f"time '{name}' decoded with fallback calendar '{cal}' (units '{units}')",
         ))
         return obj.assign_coords({name: decoded})
