@@ -16,7 +16,7 @@ from .grid import SphericalGrid, beta_parameter, coriolis_parameter
 from .observations import boundary_current_observations
 from .operators import curl_on_sphere, wind_stress_curl
 from .output import write_netcdf
-from .sources import open_stress, open_winds
+from .sources import TimeDecodingWarning, open_stress, open_winds
 from .stress import DRAG_LAWS, DragLaw, MonthlyMeanWindWarning, drag_coefficient, wind_stress
 
 __version__ = "0.1.0"
