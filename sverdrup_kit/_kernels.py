@@ -116,7 +116,27 @@ def curl_kernel(taux, tauy, phi, lam, *, periodic: bool, radius: float, return_i
         Whether longitude wraps around.
     radius : float
         Sphere radius in m.
+    return_isolated : bool, optional
+        Also return the number of ocean cells where a derivative had no ocean neighbour.
+
+    Notes
+    -----
+    Runs the compiled twin in :mod:`sverdrup_kit._fast` (same numbers, one pass over memory)
+    unless the environment variable ``SVERDRUP_KIT_JIT`` is ``0``; then
+    :func:`curl_kernel_numpy`, which states the method in plain NumPy.
     """
+    from . import _fast
+
+    kernel = _fast.curl if _fast.jit_enabled() else curl_kernel_numpy
+    return kernel(
+        taux, tauy, phi, lam, periodic=periodic, radius=radius, return_isolated=return_isolated
+    )
+
+
+def curl_kernel_numpy(
+    taux, tauy, phi, lam, *, periodic: bool, radius: float, return_isolated=False
+):
+    """NumPy reference for :func:`curl_kernel`: the same arguments and results."""
     tx = np.asarray(taux, dtype=np.float64)
     ty = np.asarray(tauy, dtype=np.float64)
     land = ~(np.isfinite(tx) & np.isfinite(ty))
