@@ -27,22 +27,26 @@ mirror ghost ``psi_ghost = psi_1``), ``zeta_wall = 0`` for free-slip.
 
 Coasts and islands
 ------------------
-Land masses are the 8-connected land regions of the mask; the edges of the grid count as land
-joined to the main coast (``psi = 0``). Each other land mass (an island) has ``psi`` constant at
-a value that is one more unknown, fixed by Kelvin's circulation theorem around its coast: the
-pressure gradient and the Coriolis force (there is no flow through the coast) integrate to zero,
-leaving
+Land masses are the 8-connected land regions of the mask. On a regional grid the edges of the
+grid count as land joined to the main coast (``psi = 0``). On a periodic (global) grid the main
+coast is the largest land mass by area, and the rows beyond the southern and northern edges are
+land masses of their own (beyond a pole no flux reaches them). Each other land mass (an island,
+or a polar continent ringed by a circumpolar channel) has ``psi`` constant at a value that is
+one more unknown, fixed by Kelvin's circulation theorem round its coast: the pressure gradient
+and the Coriolis force (there is no flow through the coast) integrate to zero, leaving
 
 .. math:: r\oint\mathbf U\cdot d\mathbf l - A_H\oint\partial_n\zeta\,dl
    = \frac{1}{\rho_0}\oint\boldsymbol\tau\cdot d\mathbf l
    = \frac{1}{\rho_0}\iint_{\rm island}\operatorname{curl}\boldsymbol\tau\,dA .
 
-Discretely this is the area-weighted sum of the friction terms of the vorticity equation over
-the island's points (the finite-volume form turns it into the sum of fluxes across the coast);
-the wind term uses the curl over the island where it is given, otherwise the area-mean curl of
-the ocean points around it (the wind over a small island is close to that over the water
-around it). ``islands="coast"`` instead joins every island to the main coast (``psi = 0``),
-closing the passages beside it.
+Discretely the left side is the area-weighted sum of the friction terms of the vorticity
+equation over the island's points; the finite-volume form turns it into fluxes across the faces
+between island and ocean points. The wind term is, in order of preference: the stress
+integrated along those faces (``wind_stress`` given); the curl over the island (finite there,
+with ``ocean_mask`` marking the ocean); the area-mean curl of the ocean points round the island
+times its area (good for small islands only). Attributes record which was used.
+``islands="coast"`` instead joins every island to the main coast (``psi = 0``), closing the
+passages beside it.
 
 References
 ----------
@@ -66,7 +70,8 @@ import scipy.sparse.linalg as spla
 import xarray as xr
 
 from . import constants
-from ._coords import from_canonical, require_dataarray, to_canonical
+from ._coords import check_same_grid, from_canonical, require_dataarray, to_canonical
+from ._units import to_si
 from .boundary_layers import munk_width, stommel_width
 from .grid import SphericalGrid
 
@@ -94,13 +99,22 @@ class _Metrics:
     area: np.ndarray
     beta: np.ndarray
     periodic: bool
+    poles: tuple[bool, bool] = (False, False)
 
     def padded(self) -> "_Metrics":
-        """The metrics on the grid with a land frame (values repeated from the nearest edge)."""
+        """The metrics on the grid with a land frame (values repeated from the nearest edge).
+
+        A face on a pole has no length: no flux crosses it.
+        """
         pad = ((_PAD, _PAD), (0, 0) if self.periodic else (_PAD, _PAD))
-        grow = [np.pad(a, pad, mode="edge") for a in (self.hx, self.hy, self.wx, self.wy,
-                                                      self.area)]
-        return _Metrics(*grow, np.pad(self.beta, _PAD, mode="edge"), self.periodic)
+        hx, hy, wx, wy, area = (np.pad(a, pad, mode="edge") for a in (
+            self.hx, self.hy, self.wx, self.wy, self.area))
+        if self.poles[0]:
+            wy[:_PAD] = 0.0
+        if self.poles[1]:
+            wy[-_PAD - 1:] = 0.0
+        return _Metrics(hx, hy, wx, wy, area, np.pad(self.beta, _PAD, mode="edge"),
+                        self.periodic, self.poles)
 
 
 def _metrics_sphere(grid: SphericalGrid, beta: np.ndarray) -> _Metrics:
@@ -118,7 +132,8 @@ def _metrics_sphere(grid: SphericalGrid, beta: np.ndarray) -> _Metrics:
     face_n = np.empty(grid.shape)
     face_n[:-1] = 0.5 * (dx[:-1] + dx[1:])
     face_n[-1] = face_n[-2]
-    return _Metrics(hx, hy, dy / hx, face_n / hy, grid.cell_area, beta, grid.periodic)
+    poles = (bool(grid.lat_edges[0] <= -90.0), bool(grid.lat_edges[-1] >= 90.0))
+    return _Metrics(hx, hy, dy / hx, face_n / hy, grid.cell_area, beta, grid.periodic, poles)
 
 
 def _metrics_cartesian(x: np.ndarray, y: np.ndarray, beta: np.ndarray) -> _Metrics:
@@ -154,21 +169,9 @@ class _Operator:
         n = ny * nx
         self.n = n
         idx = np.arange(n).reshape(ny, nx)
-        land_id = _land_masses(~ocean_p, m.periodic, islands)
-        self.land_id = land_id
-        self.n_islands = int(land_id.max()) if land_id.size else 0
         oc = ocean_p.ravel()
         self.ocean_flat = np.flatnonzero(oc)
         n_ocean = self.ocean_flat.size
-        # Expansion from unknowns (ocean points, then one constant per island) to all points.
-        col = np.full(n, -1)
-        col[self.ocean_flat] = np.arange(n_ocean)
-        lid = land_id.ravel()
-        isl = lid > 0
-        col[isl] = n_ocean + lid[isl] - 1
-        rows = np.flatnonzero(col >= 0)
-        E = sp.csr_matrix((np.ones(rows.size), (rows, col[rows])), shape=(n, n_ocean + self.n_islands))
-        self.E = E
 
         def nb(di, dj):
             """Flat index of the neighbour (di, dj), -1 beyond a non-periodic edge."""
@@ -195,6 +198,27 @@ class _Operator:
         h_w = np.where(west >= 0, hx[np.maximum(west, 0)], hx)
         h_s = np.where(south >= 0, hy[np.maximum(south, 0)], hy)
         faces = [(east, wx * (east >= 0)), (west, w_w), (north, wy * (north >= 0)), (south, w_s)]
+        # Face lengths with the sign and component of the stress along an anticlockwise path
+        # round a land point whose neighbour in that direction is ocean.
+        self.coast_faces = [(east, wx * hx, 1, +1.0), (west, w_w * h_w, 1, -1.0),
+                            (north, wy * hy, 0, -1.0), (south, w_s * h_s, 0, +1.0)]
+        self.oc = oc
+        touch = np.zeros(n, bool)
+        for nbr, w in faces:
+            touch |= (nbr >= 0) & (w > 0) & oc[np.maximum(nbr, 0)]
+        land_id = _land_masses(~ocean_p, m.periodic, islands, m.area, touch.reshape(ny, nx))
+        self.land_id = land_id
+        self.n_islands = int(land_id.max()) if land_id.size else 0
+        # Expansion from unknowns (ocean points, then one constant per island) to all points.
+        col = np.full(n, -1)
+        col[self.ocean_flat] = np.arange(n_ocean)
+        lid = land_id.ravel()
+        isl = lid > 0
+        col[isl] = n_ocean + lid[isl] - 1
+        rows = np.flatnonzero(col >= 0)
+        E = sp.csr_matrix((np.ones(rows.size), (rows, col[rows])),
+                          shape=(n, n_ocean + self.n_islands))
+        self.E = E
         self.L = _flux_operator(me, faces, area, n)
         self.hx_e, self.hx_w, self.hy_n, self.hy_s = hx, h_w, hy, h_s
         # Centred d/dx, used for beta dpsi/dx and for the velocities.
@@ -265,6 +289,32 @@ class _Operator:
             (np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))), shape=(n, n)
         )
 
+    def island_area(self) -> np.ndarray:
+        lid = self.land_id.ravel()
+        isl = lid > 0
+        return np.bincount(lid[isl] - 1, weights=self.area[isl], minlength=self.n_islands)
+
+    def wind_circulation(self, taux: np.ndarray, tauy: np.ndarray) -> np.ndarray:
+        """Anticlockwise circulation of the stress round each island's coast, N m-1.
+
+        The path runs along the faces between island and ocean points; the stress is taken at
+        the ocean point.
+        """
+        comps = (self.pad_field(taux).ravel(), self.pad_field(tauy).ravel())
+        lid = self.land_id.ravel()
+        out = np.zeros(self.n_islands)
+        for nbr, length, comp, sign in self.coast_faces:
+            ok = (lid > 0) & (nbr >= 0) & self.oc[np.maximum(nbr, 0)] & (length > 0)
+            val = comps[comp][nbr[ok]]
+            if not np.all(np.isfinite(val)):
+                raise ValueError(
+                    "wind_stress: expected finite stress at every ocean point next to an island, "
+                    f"found {int(np.sum(~np.isfinite(val)))} missing. Fix: fill the stress "
+                    "there, or leave wind_stress out to use the curl."
+                )
+            np.add.at(out, lid[ok] - 1, sign * val * length[ok])
+        return out
+
     def solve(self, forcing: np.ndarray, island_forcing: np.ndarray) -> np.ndarray:
         """psi (m3 s-1) at every point of the unpadded grid for curl/rho0 on the ocean points."""
         rhs = np.concatenate([forcing.ravel()[self._ocean_unpadded()], island_forcing])
@@ -321,11 +371,15 @@ def _difference(me, plus, minus, dist, n):
     return sp.csr_matrix((vals, (rows, cols)), shape=(n, n))
 
 
-def _land_masses(land: np.ndarray, periodic: bool, islands: str) -> np.ndarray:
-    """Label land: 0 for the main coast (joined to the grid's frame), 1..k for islands, -1 ocean.
+def _land_masses(land, periodic, islands, area, touch) -> np.ndarray:
+    """Label land: 0 for the main coast, 1..k for islands, -1 for ocean.
 
     Land regions are 8-connected: two land points touching at a corner leave no passage for a
-    five-point stencil, so they belong to one land mass.
+    five-point stencil, so they belong to one land mass. On a regional grid the frame around
+    it is one wall and joins the main coast. On a periodic (global) grid the rows beyond the
+    southern and northern edges are separate land masses and the main coast is the largest
+    land mass by area; a land mass that no flux can reach (``touch`` is False on all its
+    points: the rows beyond a pole) joins the main coast, as its value does not matter.
     """
     lab, nlab = ndi.label(land, structure=np.ones((3, 3), bool))
     if periodic and nlab:
@@ -338,19 +392,25 @@ def _land_masses(land: np.ndarray, periodic: bool, islands: str) -> np.ndarray:
                 a = parent[a]
             return a
 
+        ny = lab.shape[0]
         for di in (-1, 0, 1):
-            a = lab[:, -1]
-            b = np.roll(lab[:, 0], -di)
-            for p, q in zip(a, b):
+            rows = np.arange(max(0, -di), min(ny, ny - di))
+            for p, q in zip(lab[rows, -1], lab[rows + di, 0]):
                 if p and q:
                     parent[find(p)] = find(q)
         roots = np.array([find(k) for k in range(nlab + 1)])
         lab = roots[lab]
     frame = np.zeros_like(land)
     frame[:_PAD] = frame[-_PAD:] = True
-    if not periodic:
+    if periodic:
+        sizes = np.bincount(lab.ravel(), weights=np.where(frame, 0.0, area).ravel(),
+                            minlength=lab.max() + 1)
+        sizes[0] = -1.0
+        main = {int(np.argmax(sizes))}
+    else:
         frame[:, :_PAD] = frame[:, -_PAD:] = True
-    main = set(np.unique(lab[frame])) - {0}
+        main = set(np.unique(lab[frame]).tolist()) - {0}
+    main |= set(np.unique(lab[land]).tolist()) - set(np.unique(lab[land & touch]).tolist())
     out = np.full(land.shape, -1, dtype=int)
     out[land] = 0
     if islands == "circulation":
@@ -473,7 +533,8 @@ _ATTRS = {
 }
 
 
-def _solution_attrs(op, *, r, A_H, boundary, islands, rho0, depth, rotation, island_psi):
+def _solution_attrs(op, *, r, A_H, boundary, islands, rho0, depth, rotation, island_psi,
+                    island_how):
     return dict(
         title="steady linear barotropic vorticity equation",
         equation="r lap(psi) - A_H lap(lap(psi)) + beta dpsi/dx = curl(tau)/rho0",
@@ -487,6 +548,8 @@ def _solution_attrs(op, *, r, A_H, boundary, islands, rho0, depth, rotation, isl
         ),
         n_islands=op.n_islands,
         island_streamfunction=np.asarray(island_psi) / constants.SVERDRUP,
+        island_wind_circulation_from="; ".join(
+            f"island {k}: {h}" for k, h in enumerate(island_how, start=1)) or "no islands",
         rho0=rho0,
         depth=depth,
         rotation=rotation,
@@ -508,6 +571,7 @@ def solve_basin(
     boundary: str = "no-slip",
     islands: str = "circulation",
     ocean_mask=None,
+    wind_stress=None,
     rho0: float = constants.RHO0,
     depth: float = 4000.0,
 ) -> xr.Dataset:
@@ -537,6 +601,10 @@ def solve_basin(
     ocean_mask : array_like of bool, shape (ny, nx), optional
         Ocean points; default: where ``curl`` is finite. Where the mask says land but the curl
         is finite, the curl is used for the island's wind circulation.
+    wind_stress : (array_like, array_like), optional
+        Eastward and northward stress (Pa), shape (ny, nx), used only for the circulation of
+        the wind round each island (more exact than the curl when the curl over the island is
+        unknown).
     rho0 : float, optional
         Reference density, kg m-3.
     depth : float, optional
@@ -579,9 +647,16 @@ def solve_basin(
         _resolution_warning(np.array([_layer_width(r, A_H, beta)]), np.diff(x).max(),
                             "western")
     op = _Operator(ocean, met, r=r, A_H=A_H, boundary=boundary, islands=islands)
-    forcing = np.where(ocean, c, np.nan) / rho0
-    island_forcing = _island_forcing_mixed(op, c, ocean, rho0)
-    psi = op.solve(np.nan_to_num(forcing), island_forcing)
+    stress = None
+    if wind_stress is not None:
+        stress = tuple(np.asarray(t, dtype=np.float64) for t in wind_stress)
+        if len(stress) != 2 or any(t.shape != c.shape for t in stress):
+            raise ValueError(
+                f"wind_stress: expected (taux, tauy) in Pa, each of shape {c.shape}, found "
+                f"{[t.shape for t in stress]}. Fix: pass the stress on the grid of curl."
+            )
+    island_forcing, how = _island_forcing_mixed(op, c, ocean, rho0, stress)
+    psi = op.solve(np.where(ocean, c, 0.0) / rho0, island_forcing)
     coords = {
         "y": ("y", y, dict(units="m", long_name="northward distance", axis="Y")),
         "x": ("x", x, dict(units="m", long_name="eastward distance", axis="X")),
@@ -599,7 +674,7 @@ def solve_basin(
     rotation = "beta-plane" if beta > 0 else ("f-plane" if f0 != 0 else "none")
     ds.attrs.update(_solution_attrs(op, r=r, A_H=A_H, boundary=boundary, islands=islands,
                                     rho0=rho0, depth=depth, rotation=rotation,
-                                    island_psi=_island_values(op, psi)))
+                                    island_psi=_island_values(op, psi), island_how=how))
     ds.attrs.update(beta=float(beta), f0=float(f0), **_widths(r, A_H, beta))
     return ds
 
@@ -613,19 +688,33 @@ def _widths(r, A_H, beta):
     return out
 
 
-def _island_forcing_mixed(op, c, ocean, rho0):
-    """Island forcing from the curl on island points where given, else from the ocean ring."""
+def _island_forcing_mixed(op, c, ocean, rho0, stress=None):
+    """Right-hand side of each island's circulation condition (area-mean curl/rho0, m s-2).
+
+    From the stress round the coast when ``stress`` = (taux, tauy) is given (Kelvin's
+    condition as it stands); else from the curl over the island by Stokes' theorem where the
+    curl is given on all its points; else from the mean curl of the ocean around it.
+    Returns the values and, per island, the method used.
+    """
     if not op.n_islands:
-        return np.zeros(0)
+        return np.zeros(0), []
+    if stress is not None:
+        circ = op.wind_circulation(*stress)
+        return circ / (rho0 * op.island_area()), ["stress circulation"] * op.n_islands
     given = np.where(~ocean & np.isfinite(c), c, np.nan)
-    have_all = np.zeros(op.n_islands, bool)
-    lid = op._unpad(op.land_id.ravel().astype(float)).astype(int)
-    for k in range(1, op.n_islands + 1):
-        have_all[k - 1] = np.all(np.isfinite(given[lid == k]))
+    lid = op.island_ids()
+    area = op._unpad(op.area)
     ring = _island_forcing(op, np.where(ocean, c, np.nan) / rho0)
-    over = np.array([np.mean(given[lid == k]) / rho0 if have_all[k - 1] else np.nan
-                     for k in range(1, op.n_islands + 1)])
-    return np.where(have_all, over, ring)
+    out, how = [], []
+    for k in range(1, op.n_islands + 1):
+        on = lid == k
+        if np.all(np.isfinite(given[on])):
+            out.append(np.sum(given[on] * area[on]) / np.sum(area[on]) / rho0)
+            how.append("curl over the island")
+        else:
+            out.append(ring[k - 1])
+            how.append("curl of the ocean around the island")
+    return np.array(out), how
 
 
 def _island_values(op, psi):
@@ -654,6 +743,25 @@ def _ocean_mask(c, ocean_mask):
     return m.copy()
 
 
+def _stress_stack(wind_stress, curl, lay, shape):
+    """(taux, tauy) as float64 stacks like the curl's, in Pa, or None."""
+    if wind_stress is None:
+        return None
+    if not isinstance(wind_stress, (tuple, list)) or len(wind_stress) != 2:
+        raise TypeError(
+            f"wind_stress: expected a pair (taux, tauy) of DataArrays, found "
+            f"{type(wind_stress).__name__}. Fix: pass wind_stress=(ds['taux'], ds['tauy'])."
+        )
+    out = []
+    for name, t in zip(("taux", "tauy"), wind_stress):
+        t = require_dataarray(t, f"wind_stress {name}")
+        check_same_grid(curl, t, ("curl", f"wind_stress {name}"))
+        t = to_si(t, "stress", argname=f"wind_stress {name}", default="Pa")
+        t = to_canonical(t, lay).transpose(*curl.dims[:-2], lay.lat_name, lay.lon_name)
+        out.append(np.asarray(t.values, dtype=np.float64).reshape(shape))
+    return out
+
+
 def solve_barotropic(
     curl,
     *,
@@ -663,6 +771,7 @@ def solve_barotropic(
     boundary: str = "no-slip",
     islands: str = "circulation",
     ocean_mask=None,
+    wind_stress=None,
     reference_latitude: float | None = None,
     rho0: float = constants.RHO0,
     depth: float = 4000.0,
@@ -693,6 +802,11 @@ def solve_barotropic(
         ``"coast"``: islands join the main coast (psi = 0).
     ocean_mask : xarray.DataArray (lat, lon) of bool, optional
         Ocean points; default: where the (first) curl field is finite.
+    wind_stress : (xarray.DataArray, xarray.DataArray), optional
+        ``(taux, tauy)`` on the grid of ``curl`` (Pa; dyn cm-2 converted), used only for the
+        circulation of the wind round each island, taken along its coast. Recommended when
+        there are large islands (a polar continent): without it the wind over an island is
+        estimated from the curl of the ocean around it.
     reference_latitude : float, optional
         Latitude (degrees_north) of the beta-plane or f-plane; default: the mean latitude of the
         ocean points.
@@ -770,9 +884,11 @@ def solve_barotropic(
         _resolution_warning(_layer_width(r, A_H, beta[rows]), grid.dx[rows].max(axis=1),
                             "western")
     op = _Operator(ocean, met, r=r, A_H=A_H, boundary=boundary, islands=islands)
+    stresses = _stress_stack(wind_stress, curl, lay, stack.shape)
     psis, isl = [], []
-    for field in stack:
-        island_forcing = _island_forcing_mixed(op, field, ocean, rho0)
+    for k, field in enumerate(stack):
+        stress = None if stresses is None else (stresses[0][k], stresses[1][k])
+        island_forcing, how = _island_forcing_mixed(op, field, ocean, rho0, stress)
         psi = op.solve(np.where(ocean, field, 0.0) / rho0, island_forcing)
         psis.append(psi)
         isl.append(_island_values(op, psi))
@@ -807,7 +923,8 @@ def solve_barotropic(
     ds = from_canonical(ds, lay, curl)
     ds.attrs.update(_solution_attrs(op, r=r, A_H=A_H, boundary=boundary, islands=islands,
                                     rho0=rho0, depth=depth, rotation=rotation,
-                                    island_psi=isl[0] if len(isl) == 1 else np.array(isl)))
+                                    island_psi=isl[0] if len(isl) == 1 else np.array(isl),
+                                    island_how=how))
     ds.attrs["reference_latitude"] = lat0
     ds.attrs["seconds_output"] = round(time.perf_counter() - t0, 3)
     return ds
