@@ -34,6 +34,7 @@ __all__ = [
     "basin_mask",
     "EARTH_DIVIDING_LINES",
     "EARTH_BASIN_SEEDS",
+    "EARTH_COASTAL_LINES",
     "ISLAND_MIN_AREA",
     "CONTINENT_MIN_AREA",
     "MIN_WIDTH",
@@ -65,11 +66,14 @@ SEPARATE_OCEAN_AREA = 1.0e7
 EARTH_DIVIDING_LINES = {
     # Atlantic | Indian: the meridian of Cape Agulhas (34.8S, 20.0E), south to Antarctica.
     "agulhas_20E": [(20.0, -90.0), (20.0, -30.0)],
-    # Indian | Pacific south of Australia: 147E from Antarctica past Tasmania's South East Cape
-    # (43.6S) and across Bass Strait into Victoria.
-    "tasmania_147E": [(147.0, -90.0), (147.0, -36.0)],
-    # Pacific | Atlantic: the meridian of Cape Horn (56.0S, 67.3W), 68W, south to Antarctica.
-    "drake_68W": [(292.0, -90.0), (292.0, -53.0)],
+    # Indian | Pacific south of Australia: 147E from Antarctica to Tasmania's South East Cape
+    # (43.6S), then on across Tasmania and Bass Strait into Victoria.
+    "tasmania_147E": [(147.0, -90.0), (147.0, -43.6)],
+    "bass_strait": [(147.0, -43.6), (147.0, -36.0)],
+    # Pacific | Atlantic: the meridian of Cape Horn (56.0S, 67.3W), 68W, south to Antarctica;
+    # then along 70W across Tierra del Fuego and the Strait of Magellan into Patagonia.
+    "drake_68W": [(292.0, -90.0), (292.0, -55.5)],
+    "magellan": [(292.0, -55.5), (290.0, -55.5), (290.0, -40.0)],
     # Indian | Pacific through the Indonesian passages: across the Strait of Malacca, Sunda
     # Strait and the Lesser Sunda chain (Lombok, Ombai and Timor passages join the Pacific side
     # to the Indian side), then across the Timor Sea to Australia near Darwin. The Andaman Sea,
@@ -80,16 +84,24 @@ EARTH_DIVIDING_LINES = {
         (114.5, -8.0), (116.3, -8.6), (118.0, -8.6), (121.0, -8.6), (124.5, -9.5),
         (126.0, -8.8), (131.5, -12.8), (134.0, -20.0),
     ],
-    # Pacific | Caribbean across the Isthmus of Panama, for grids coarse enough to open it.
-    "panama": [(268.0, 17.0), (276.0, 12.0), (279.5, 9.0), (282.0, 8.8), (283.0, 8.0),
-               (285.0, 6.0)],
+    # Pacific | Gulf of Mexico and Caribbean along Central America, from central Mexico across
+    # the Isthmus of Tehuantepec and the Isthmus of Panama into Colombia, for grids coarse
+    # enough to open either (a 2 degree ship-based mask joins the oceans at 95-97W).
+    "central_america": [(255.0, 24.0), (262.0, 19.5), (268.0, 17.0), (276.0, 12.0),
+                        (279.5, 9.0), (282.0, 8.8), (283.0, 8.0), (285.0, 6.0)],
     # The Arctic Ocean and the Nordic Seas are left out: the parallel 65.5N crosses Bering
     # Strait (65.8N), Davis Strait, Denmark Strait and the Iceland-Norway gap at once.
     "arctic_65.5N": [(0.0, 65.5), (360.0, 65.5)],
     # The Mediterranean and Black Sea are left out: Strait of Gibraltar (5.6W) and Suez.
     "gibraltar": [(354.4, 38.0), (354.4, 34.0)],
-    "suez": [(31.0, 30.5), (35.0, 30.5)],
+    "suez": [(28.0, 30.5), (38.0, 30.5)],
 }
+
+#: Dividing lines that stand for land or a shallow strait the grid may miss: a basin row that
+#: ends on one of them ends on a coast. A row that ends on any other line (Agulhas, south of
+#: Tasmania, Drake Passage, the Arctic parallel) opens on another ocean and has no coast there.
+EARTH_COASTAL_LINES = ("bass_strait", "magellan", "indonesia", "central_america", "gibraltar",
+                       "suez")
 
 #: Points (lon 0..360, lat) that name the pieces of the divided ocean. A basin may have several.
 EARTH_BASIN_SEEDS = {
@@ -259,6 +271,7 @@ def _earth_basins(water, grid):
             f"{grid!r}. Fix: pass a global field, or give your own basins as masks or polygons."
         )
     cut_e, cut_n = _line_cuts(grid, EARTH_DIVIDING_LINES.values())
+    coast_e, _ = _line_cuts(grid, [EARTH_DIVIDING_LINES[k] for k in EARTH_COASTAL_LINES])
     labels, _ = label_cells(water, periodic=True, cut_east=cut_e, cut_north=cut_n)
     names = list(EARTH_BASIN_SEEDS)
     comp_of = {}
@@ -285,7 +298,7 @@ def _earth_basins(water, grid):
     out = np.full(water.shape, -1, dtype=np.int64)
     for k, name in enumerate(names):
         out[np.isin(labels, list(comp_of[name]))] = k
-    return out, names
+    return out, names, coast_e
 
 
 def _polygon_inside(grid, verts):
@@ -408,7 +421,12 @@ def _islands_join_basins(basin, cls, land_labels, periodic):
 
 
 def assign_basins(basins, water, grid, layout, ref, cls, land_labels, *, min_area):
-    """Basin numbers (ny, nx), -1 outside, and basin names, on the canonical grid."""
+    """Basin numbers (ny, nx), -1 outside, basin names, and coast-like links.
+
+    The last is a boolean (ny, nx) array, True where the link from (j, i) to (j, i+1) crosses
+    a line that stands for a coast (``basins="earth"`` only).
+    """
+    coast_e = np.zeros(water.shape, dtype=bool)
     if basins is None:
         bid, names = _auto_basins(water, grid, cls, land_labels, min_area=min_area)
     elif isinstance(basins, str):
@@ -417,7 +435,7 @@ def assign_basins(basins, water, grid, layout, ref, cls, land_labels, *, min_are
                 f"basins: expected None, 'earth', masks or polygons, found the string "
                 f"{basins!r}. Fix: basins='earth' for the Atlantic, Pacific and Indian Oceans."
             )
-        bid, names = _earth_basins(water, grid)
+        bid, names, coast_e = _earth_basins(water, grid)
     else:
         bid, names = _user_basins(basins, water, grid, layout, ref)
     bid = _islands_join_basins(bid, cls, land_labels, grid.periodic)
@@ -426,7 +444,7 @@ def assign_basins(basins, water, grid, layout, ref, cls, land_labels, *, min_are
             "basins: no ocean cell lies in any basin. Fix: check that the basin masks or "
             "polygons overlap the ocean (longitudes in degrees_east, polygons as (lon, lat))."
         )
-    return bid, names
+    return bid, names, coast_e
 
 
 # --------------------------------------------------------------------------------------------
@@ -506,12 +524,12 @@ class RowGroup:
         return sum(float(dx_row[(w + np.arange(n)) % nx].sum()) for w, n in self.runs)
 
 
-def row_groups(m, cls_row, land_row, periodic):
+def row_groups(m, cls_row, land_row, periodic, coast_row=None):
     """Split the True cells of one row into groups of runs joined across large islands.
 
     Two neighbouring runs are joined when the cells between them are all land of one large
     island. A group that closes the circle (a periodic row of water and large islands only) is
-    ``circular`` and has no ends.
+    ``circular`` and has no ends. ``coast_row[i]`` True makes the link from i to i+1 a coast.
     """
     nx = m.size
     runs, circular = _runs(m, periodic)
@@ -555,10 +573,15 @@ def row_groups(m, cls_row, land_row, periodic):
             cur = []
         cur.append(runs[k])
     groups.append(cur)
+    def end(i, link):
+        if coast_row is not None and coast_row[link % nx]:
+            return (CONTINENT, -1)
+        return kind(i)
+
     out = []
     for g in groups:
         (ww, _), (ew, en) = g[0], g[-1]
-        out.append(RowGroup(g[::-1], False, kind(ew + en), kind(ww - 1)))
+        out.append(RowGroup(g[::-1], False, end(ew + en, ew + en - 1), end(ww - 1, ww - 1)))
     return out
 
 
@@ -625,7 +648,7 @@ def _auto_basins(water, grid, cls, land_labels, *, min_area):
     return out, [f"basin_{k}" for k in range(keep_b.size)]
 
 
-def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km):
+def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km, coast_e=None):
     """Work out runs, groups, row status and coasts for every basin row."""
     ny, nx = bid.shape
     periodic = grid.periodic
@@ -648,7 +671,8 @@ def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km
 
     for b in range(n_basins):
         for j in range(ny):
-            groups = row_groups(bid[j] == b, cls[j], land_labels[j], periodic)
+            groups = row_groups(bid[j] == b, cls[j], land_labels[j], periodic,
+                                None if coast_e is None else coast_e[j])
             if not groups:
                 continue
             if equatorial[j]:
@@ -748,8 +772,8 @@ def basin_mask(
         ocean, grid, island_min_area=island_min_area, continent_min_area=continent_min_area
     )
     water = cls <= SMALL_ISLAND
-    bid, names = assign_basins(basins, water, grid, lay, ocean_mask, cls, land_labels,
-                               min_area=island_min_area)
+    bid, names, _ = assign_basins(basins, water, grid, lay, ocean_mask, cls, land_labels,
+                                  min_area=island_min_area)
     out = xr.DataArray(bid.astype(np.int32), coords=can.coords, dims=can.dims)
     out = from_canonical(out, lay, ocean_mask)
     return out.rename("basin_id").assign_attrs(basin_id_attrs(names))

@@ -241,14 +241,14 @@ def sverdrup(
         ocean, grid, island_min_area=island_min_area, continent_min_area=continent_min_area
     )
     water = cls <= SMALL_ISLAND
-    bid, names = assign_basins(
+    bid, names, coast_e = assign_basins(
         basins, water, grid, lay, taux, cls, land_labels, min_area=island_min_area
     )
     nb = len(names)
     band = grid.equatorial_band(equatorial_band) if equatorial_band > 0 else np.zeros(
         grid.lat.size, dtype=bool)
     plan = plan_rows(bid, cls, land_labels, grid, n_basins=nb, equatorial=band,
-                     min_width_km=min_width)
+                     min_width_km=min_width, coast_e=coast_e)
 
     # Per time step: fill, curl, V, scan.
     keep_missing = (cls == OCEAN) if not fill_gaps else np.zeros_like(water)
