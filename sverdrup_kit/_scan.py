@@ -132,7 +132,7 @@ def sign_changes(t, lat, valid, *, max_crossings):
     -------
     crossings : ndarray (..., nb, max_crossings)
         Latitudes by linear interpolation between the two rows, south to north, NaN-padded.
-    count : ndarray (..., nb), float64
+    count : ndarray (..., nb), int64
         Number of sign changes found (may exceed ``max_crossings``).
     """
     t = np.asarray(t, dtype=np.float64)
@@ -143,7 +143,7 @@ def sign_changes(t, lat, valid, *, max_crossings):
         frac = a / (a - b)
     y = lat[:-1] + frac * np.diff(lat)
     y = np.where(hit, y, np.nan)
-    count = hit.sum(axis=-1).astype(np.float64)
+    count = hit.sum(axis=-1).astype(np.int64)
     # Sorting puts NaN last, so the found latitudes come first in ascending order.
     y = np.sort(y, axis=-1)
     k = y.shape[-1]

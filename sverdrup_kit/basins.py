@@ -707,18 +707,21 @@ def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km
                 for w, n in g.runs:
                     add_run(j, w, n)
                     cell_class[j, (w + np.arange(n)) % nx] = 2
-    as_int = lambda x: np.asarray(x, dtype=np.int64)  # noqa: E731
     return RowPlan(
-        cells=np.concatenate(cells).astype(np.int64) if cells else as_int([]),
-        run_starts=as_int(run_starts),
-        group_runs=as_int(g_runs),
-        group_starts=as_int(g_starts),
-        group_slot=as_int(g_slot),
+        cells=np.concatenate(cells).astype(np.int64) if cells else _ints([]),
+        run_starts=_ints(run_starts),
+        group_runs=_ints(g_runs),
+        group_starts=_ints(g_starts),
+        group_slot=_ints(g_slot),
         row_status=status,
         east_lon=east_lon,
         west_lon=west_lon,
         cell_class=cell_class,
     )
+
+
+def _ints(x):
+    return np.asarray(x, dtype=np.int64)
 
 
 def _face(edges, i, nx, periodic):

@@ -13,7 +13,13 @@ import xarray as xr
 
 from . import constants
 from ._apply import apply_grid_kernel, whole_fields
-from ._coords import check_same_grid, from_canonical, require_dataarray, to_canonical
+from ._coords import (
+    GridLayout,
+    check_same_grid,
+    from_canonical,
+    require_dataarray,
+    to_canonical,
+)
 from ._scan import fill_from_neighbours, sign_changes, sum_groups, westward_scan
 from ._units import to_si
 from .basins import (
@@ -233,7 +239,10 @@ def sverdrup(
     lat, lon = lay.lat_name, lay.lon_name
     tx = to_canonical(to_si(taux, "stress", argname="taux", default="Pa"), lay)
     ty = to_canonical(to_si(tauy, "stress", argname="tauy", default="Pa"), lay)
-    grid = SphericalGrid.from_data(tx, argname="taux", radius=radius, omega=omega)
+    # Everything below works on the canonical grid, whose layout is the identity.
+    ident = GridLayout(lat, lon, lay.lat, lay.lon, np.arange(lay.lat.size),
+                       np.arange(lay.lon.size), lay.periodic)
+    grid = SphericalGrid(lay.lat, lay.lon, lay.periodic, radius, omega, ident)
 
     # Geometry: once per call, from grid and mask alone.
     ocean = _ocean_from(taux, tauy, ocean_mask, lay)
@@ -282,13 +291,13 @@ def sverdrup(
         input_core_dims=[["basin", lat]],
         output_core_dims=[["basin", "crossing"], ["basin"]],
         dask="parallelized",
-        output_dtypes=[np.float64, np.float64],
+        output_dtypes=[np.float64, np.int64],
         dask_gufunc_kwargs={"output_sizes": {"crossing": max_crossings}},
         kwargs=dict(lat=grid.lat, valid=plan.row_status == 0, max_crossings=max_crossings),
     )
 
     ds = _assemble(
-        tx, curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
+        curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
         taux, rho0=rho0, band=equatorial_band, island_min_area=island_min_area,
         continent_min_area=continent_min_area, min_width=min_width, fill_gaps=fill_gaps,
         given_mask=ocean_mask is not None,
@@ -312,7 +321,7 @@ def _to_user_lon(x, original_lon):
     return np.where(np.isfinite(x), base + np.mod(x - base, 360.0), np.nan)
 
 
-def _assemble(tx, curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
+def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
               original, *, rho0, band, island_min_area, continent_min_area, min_width,
               fill_gaps, given_mask):
     lat, lon = lay.lat_name, lay.lon_name

@@ -599,3 +599,19 @@ def test_coads_scalar_speed_stress_drives_a_stronger_gyre(marine_climatology, et
         b = float(spd.interior_transport.sel(basin=basin, lat=[25.0, 27.0, 29.0]).mean())
         assert b < a < 0
         assert 1.05 < b / a < 1.6
+
+
+def test_coordinates_named_like_an_old_analysis_file(world):
+    # Axis names such as COADSY/COADSX with CF units, as in the classic climatology files.
+    tx, ty, _ = world
+
+    def rename(a):
+        out = a.rename(lat="COADSY", lon="COADSX")
+        out["COADSY"].attrs["units"] = "degrees_north"
+        out["COADSX"].attrs["units"] = "degrees_east"
+        return out
+
+    ref = sverdrup(tx, ty)
+    ds = sverdrup(rename(tx), rename(ty))
+    assert ds.interior_transport.dims == ("basin", "COADSY")
+    np.testing.assert_array_equal(ds.interior_transport.values, ref.interior_transport.values)
