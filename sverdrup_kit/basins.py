@@ -344,6 +344,17 @@ def _mask_on_grid(da, ref, layout, argname):
     return np.asarray(to_canonical(da, layout).transpose(lat_name, lon_name).values)
 
 
+def _as_bool(vals, argname):
+    """True/1 where set; False, 0 and NaN where not."""
+    if vals.dtype.kind not in "biuf":
+        raise TypeError(
+            f"{argname}: expected booleans or numbers (True/1 inside), found dtype "
+            f"{vals.dtype}. Fix: {argname}.astype(bool)."
+        )
+    v = vals.astype(np.float64)
+    return np.where(np.isfinite(v), v, 0.0) != 0.0
+
+
 def _user_basins(basins, water, grid, layout, ref):
     if isinstance(basins, xr.DataArray):
         vals = _mask_on_grid(basins, ref, layout, "basins")
@@ -374,7 +385,8 @@ def _user_basins(basins, water, grid, layout, ref):
         names = []
         for k, (name, spec) in enumerate(basins.items()):
             if isinstance(spec, xr.DataArray):
-                m = _mask_on_grid(spec, ref, layout, f"basins[{name!r}]").astype(bool)
+                m = _as_bool(_mask_on_grid(spec, ref, layout, f"basins[{name!r}]"),
+                             f"basins[{name!r}]")
                 clash = m & water & (out >= 0)
                 if clash.any():
                     other = names[int(out[clash][0])]
@@ -769,8 +781,7 @@ def basin_mask(
     grid = SphericalGrid.from_data(ocean_mask, argname="ocean_mask")
     lay = grid.layout
     can = to_canonical(ocean_mask, lay).transpose(lay.lat_name, lay.lon_name)
-    vals = np.asarray(can.values)
-    ocean = np.where(np.isfinite(vals.astype(float)), vals, 0).astype(bool)
+    ocean = _as_bool(np.asarray(can.values), "ocean_mask")
     cls, land_labels = classify_land(
         ocean, grid, island_min_area=island_min_area, continent_min_area=continent_min_area
     )

@@ -30,6 +30,7 @@ from .basins import (
     OCEAN,
     ROW_STATUS,
     SMALL_ISLAND,
+    _as_bool,
     _mask_on_grid,
     assign_basins,
     basin_id_attrs,
@@ -75,14 +76,7 @@ def _check_positive(value, name, *, allow_zero=False, fix=""):
 
 def _ocean_from(taux, tauy, ocean_mask, layout):
     if ocean_mask is not None:
-        vals = _mask_on_grid(ocean_mask, taux, layout, "ocean_mask")
-        if vals.dtype.kind not in "biuf":
-            raise TypeError(
-                f"ocean_mask: expected booleans or numbers (True/1 for ocean), found dtype "
-                f"{vals.dtype}. Fix: ocean_mask.astype(bool)."
-            )
-        v = vals.astype(np.float64)
-        return np.where(np.isfinite(v), v, 0.0) != 0.0
+        return _as_bool(_mask_on_grid(ocean_mask, taux, layout, "ocean_mask"), "ocean_mask")
     lat, lon = layout.lat_name, layout.lon_name
     seen = taux.notnull() & tauy.notnull()
     lead = [d for d in seen.dims if d not in (lat, lon)]
@@ -207,6 +201,23 @@ def sverdrup(
     left empty when it lies in the equatorial band, when its ocean wraps all the way round or
     its eastern end opens on another basin (no eastern coast), when its western end opens on
     another basin (no western coast), or when it is narrower than ``min_width``.
+
+    Examples
+    --------
+    An invented closed basin between 0E and 60E, 15N to 55N, under easterlies that turn to
+    westerlies:
+
+    >>> import numpy as np, xarray as xr
+    >>> lat, lon = np.arange(-89.0, 90.0, 2.0), np.arange(1.0, 360.0, 2.0)
+    >>> ocean = (lon < 60) & (lat[:, None] > 15) & (lat[:, None] < 55)
+    >>> tau = -0.1 * np.cos(np.deg2rad(4.5 * (lat[:, None] - 15)))
+    >>> taux = xr.DataArray(np.where(ocean, tau, np.nan), coords={"lat": lat, "lon": lon},
+    ...                     dims=("lat", "lon"), attrs={"units": "Pa"})
+    >>> ds = sverdrup(taux, 0 * taux)
+    >>> ds.interior_transport.sel(basin="basin_0", lat=31.0).round(1).item()
+    -19.8
+    >>> ds.gyre_boundary_lat.sel(basin="basin_0", crossing=0).round(1).item()
+    51.5
 
     References
     ----------

@@ -615,3 +615,39 @@ def test_coordinates_named_like_an_old_analysis_file(world):
     ds = sverdrup(rename(tx), rename(ty))
     assert ds.interior_transport.dims == ("basin", "COADSY")
     np.testing.assert_array_equal(ds.interior_transport.values, ref.interior_transport.values)
+
+
+def test_without_a_mask_dask_input_is_read_once_for_the_land_mask(world):
+    # Documented: the land mask comes from the stress itself, one pass at call time.
+    tx, ty, _ = world
+    tx4, ty4 = _stack_time(tx).chunk({"time": 2}), _stack_time(ty).chunk({"time": 2})
+    counter = CountingScheduler()
+    with dask.config.set(scheduler=counter):
+        lazy = sverdrup(tx4, ty4)
+        assert counter.calls == 1
+    ref = sverdrup(tx4.compute(), ty4.compute())
+    np.testing.assert_allclose(lazy.interior_transport, ref.interior_transport, equal_nan=True)
+
+
+def test_same_numbers_on_a_distributed_cluster(world):
+    distributed = pytest.importorskip("distributed")
+    tx, ty, mask = world
+    tx4, ty4 = _stack_time(tx), _stack_time(ty)
+    ref = sverdrup(tx4, ty4, ocean_mask=mask)
+    with distributed.Client(processes=False, n_workers=1, threads_per_worker=2,
+                            dashboard_address=None):
+        got = sverdrup(tx4.chunk({"time": 1}), ty4.chunk({"time": 1}),
+                       ocean_mask=mask).compute()
+    np.testing.assert_allclose(got.streamfunction, ref.streamfunction, rtol=1e-12,
+                               equal_nan=True)
+    np.testing.assert_allclose(got.interior_transport, ref.interior_transport, rtol=1e-12,
+                               equal_nan=True)
+
+
+def test_basin_masks_with_missing_values_count_as_outside(world):
+    tx, ty, mask = world
+    auto = sverdrup(tx, ty)
+    m = (auto.basin_id == 0).astype(float).where(auto.basin_id == 0)  # 1 inside, NaN outside
+    ds = sverdrup(tx, ty, basins={"b0": m})
+    np.testing.assert_allclose(ds.interior_transport.isel(basin=0),
+                               auto.interior_transport.isel(basin=0), equal_nan=True)
