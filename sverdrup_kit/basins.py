@@ -38,6 +38,7 @@ __all__ = [
     "ISLAND_MIN_AREA",
     "CONTINENT_MIN_AREA",
     "MIN_WIDTH",
+    "SEPARATE_OCEAN_AREA",
 ]
 
 #: Land bodies smaller than this (km2) are small islands: the westward integral runs across them
@@ -64,7 +65,8 @@ SEPARATE_OCEAN_AREA = 1.0e7
 #: cuts the global ocean. A cut removes every link between two neighbouring cell centres that
 #: crosses a line; each line ends inside land so that coarse grids cannot leak round its ends.
 EARTH_DIVIDING_LINES = {
-    # Atlantic | Indian: the meridian of Cape Agulhas (34.8S, 20.0E), south to Antarctica.
+    # Atlantic | Indian: the meridian of Cape Agulhas (34.8S, 20.0E), from Antarctica into
+    # South Africa.
     "agulhas_20E": [(20.0, -90.0), (20.0, -30.0)],
     # Indian | Pacific south of Australia: 147E from Antarctica to Tasmania's South East Cape
     # (43.6S), then on across Tasmania and Bass Strait into Victoria.

@@ -117,7 +117,11 @@ def sverdrup(
     basins : None, "earth", xarray.DataArray or dict, optional
         ``None``: connected ocean regions of the mask (faces only, longitude wrapping on a
         global grid), named ``basin_0``, ``basin_1``, ... by decreasing area; water bodies
-        smaller than ``island_min_area`` are left out. ``"earth"``: the Atlantic, Pacific and
+        smaller than ``island_min_area`` are left out. Where two oceans larger than
+        :data:`~sverdrup_kit.basins.SEPARATE_OCEAN_AREA` (1e7 km2) meet beyond a continent's
+        tip they become separate basins, and the rows beyond the tip a third; smaller branches
+        (gulfs) stay with the ocean they open into. Oceans joined through an archipelago (the
+        real Earth's Indonesian seas) stay one basin: use ``"earth"`` there. ``"earth"``: the Atlantic, Pacific and
         Indian Oceans of the real Earth, both hemispheres, cut along
         :data:`~sverdrup_kit.basins.EARTH_DIVIDING_LINES` (20E south of Cape Agulhas, 147E
         south of Tasmania and across Bass Strait, 68W south of Cape Horn, a line through the
