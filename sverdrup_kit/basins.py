@@ -495,7 +495,7 @@ class RowPlan:
     """The westward integral of one call, worked out from grid and mask alone.
 
     ``cells``/``run_starts``: the runs to integrate, each from its eastern cell westward (flat
-    indices j * nx + i). ``group_runs``/``group_starts``/``group_slot``: which runs add up to
+    indices j * nx + i), in ascending row order. ``group_runs``/``group_starts``/``group_slot``: which runs add up to
     the interior transport of (basin, row) slot ``b * ny + j``.
     """
 
@@ -721,10 +721,18 @@ def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km
                 for w, n in g.runs:
                     add_run(j, w, n)
                     cell_class[j, (w + np.arange(n)) % nx] = 2
+    # Runs in ascending row order, so that a kernel can scan each row while it is in cache.
+    run_row = _ints([c[0] // nx for c in cells])
+    order = np.argsort(run_row, kind="stable")
+    new_index = np.empty(order.size, dtype=np.int64)
+    new_index[order] = np.arange(order.size)
+    cells = [cells[k] for k in order]
+    lengths = _ints([c.size for c in cells])
     return RowPlan(
         cells=np.concatenate(cells).astype(np.int64) if cells else _ints([]),
-        run_starts=_ints(run_starts),
-        group_runs=_ints(g_runs),
+        run_starts=np.concatenate([[0], np.cumsum(lengths)[:-1]]).astype(np.int64)
+        if cells else _ints([]),
+        group_runs=new_index[_ints(g_runs)] if g_runs else _ints([]),
         group_starts=_ints(g_starts),
         group_slot=_ints(g_slot),
         row_status=status,

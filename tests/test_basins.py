@@ -162,3 +162,30 @@ def test_earth_basins_on_etopo60(etopo60):
     assert at(19.5 + 360, -45.5) == "atlantic" and at(20.5, -45.5) == "indian"
     assert at(146.5, -50.5) == "indian" and at(147.5, -50.5) == "pacific"
     assert at(291.5, -60.5) == "pacific" and at(292.5, -60.5) == "atlantic"
+
+
+def test_row_plan_runs_lie_in_one_row_in_ascending_order():
+    # The compiled fused kernel scans row by row (sverdrup_kit._fast.runs_by_row checks this).
+    from sverdrup_kit.basins import assign_basins, plan_rows
+
+    lat, lon = grid()
+    ocean = box(lat, lon, 0, 60, -40, 60) | box(lat, lon, 150, 230, -40, 60)
+    ocean |= box(lat, lon, -1, 361, -60, -40)
+    ocean &= ~box(lat, lon, 180, 190, 10, 30)
+    g = SphericalGrid(lat, lon, True)
+    cls, land = classify_land(ocean, g, island_min_area=1e5, continent_min_area=5e6)
+    water = cls <= SMALL_ISLAND
+    bid, names, coast = assign_basins(None, water, g, None, None, cls, land, min_area=1e5)
+    plan = plan_rows(bid, cls, land, g, n_basins=len(names), equatorial=np.abs(lat) < 3,
+                     min_width_km=500, coast_e=coast)
+    nx = lon.size
+    rows = plan.cells // nx
+    starts = plan.run_starts
+    run_of_cell = np.repeat(np.arange(starts.size), np.diff(np.append(starts, plan.cells.size)))
+    assert np.all(rows == rows[starts][run_of_cell])
+    assert np.all(np.diff(rows[starts]) >= 0)
+    # Each group of runs (a basin row) lies in one row too.
+    for k, s0 in enumerate(plan.group_starts):
+        s1 = plan.group_starts[k + 1] if k + 1 < plan.group_starts.size else plan.group_runs.size
+        assert np.unique(rows[starts[plan.group_runs[s0:s1]]]).size == 1
+        assert rows[starts[plan.group_runs[s0]]] == plan.group_slot[k] % lat.size
