@@ -166,6 +166,8 @@ def _name(da: xr.DataArray, default: str = "") -> str:
 
 
 def _label(name: str, units: str, scale_exp: int = 0) -> str:
+    # "velocity (positive upward)" + units reads better as "velocity, positive upward (units)".
+    name = re.sub(r"\s*\(([^()]*)\)\s*$", r", \1", name.strip())
     units = units.strip()
     if units in _DIMENSIONLESS:
         units = ""
@@ -606,7 +608,7 @@ def map_field(
     fig : matplotlib.figure.Figure
     ax : cartopy.mpl.geoaxes.GeoAxes
     """
-    da = _reduce_time(_pick(data, (), "data"), time, "data")
+    da = _reduce_time(require_dataarray(data, "data"), time, "data")
     w = _figure_width(width)
     fs = _fonts(w)
     with mpl.rc_context(_rc(fs)):
@@ -675,32 +677,79 @@ def map_curl(data, **kw):
     """Map the wind-stress curl (N m-3) with the cmocean ``curl`` map; see :func:`map_field`.
 
     ``data`` is the DataArray from :func:`~sverdrup_kit.operators.wind_stress_curl` or a Dataset
-    holding ``wind_stress_curl``.
+    holding ``wind_stress_curl`` (and perhaps ``ocean_mask``).
     """
     da = _pick(data, ("wind_stress_curl",), "data")
     kw.setdefault("cmap", cmocean.cm.curl)
-    if isinstance(data, xr.Dataset) and "ocean_mask" in data and "ocean_mask" not in kw:
-        kw["ocean_mask"] = data["ocean_mask"]
+    if isinstance(data, xr.Dataset) and "ocean_mask" in data:
+        kw.setdefault("ocean_mask", data["ocean_mask"])
     return map_field(da, **kw)
 
 
-def map_ekman_pumping(data, *, equatorial_band=None, **kw):
+def map_ekman_pumping(data, *, equatorial_band=None, limits_poleward_of: float = 10.0, **kw):
     """Map Ekman pumping in m yr-1 (positive upward), the equatorial band shaded and named.
 
-    ``data`` is the Dataset from :func:`~sverdrup_kit.ekman.ekman` or its ``ekman_pumping``.
-    Ocean cells without a value are taken as the equatorial band when they lie within
-    ``equatorial_band`` degrees (default: the data's attrs, else 3); see :func:`map_field`.
+    Parameters
+    ----------
+    data : xarray.Dataset or xarray.DataArray
+        The Dataset from :func:`~sverdrup_kit.ekman.ekman` (or one holding ``ekman_pumping``),
+        or the ``ekman_pumping`` DataArray, in m s-1.
+    equatorial_band : float, optional
+        Half-width in degrees of the band left empty (default: the data's attrs, else 3).
+        Ocean cells there are shaded and named.
+    limits_poleward_of : float
+        Take the robust colour limits from latitudes poleward of this (degrees): the beta
+        term of the pumping grows as 1/f^2 next to the band and would otherwise wash out the
+        gyres. 0 uses every latitude.
+    **kw
+        As in :func:`map_field` (``vmax`` in m s-1).
+
+    Returns
+    -------
+    fig, ax
     """
     da = _pick(data, ("ekman_pumping",), "data")
+    ds = data if isinstance(data, xr.Dataset) else None
+    band = _equatorial_band(data if ds is not None else da, equatorial_band)
     kw.setdefault("cmap", cmocean.cm.delta)
     kw.setdefault("to_per_year", True)
-    if isinstance(data, xr.Dataset) and "ocean_mask" not in kw:
-        for name in ("ocean_mask",):
-            if name in data:
-                kw["ocean_mask"] = data[name]
-    band = _equatorial_band(data if isinstance(data, xr.Dataset) else da, equatorial_band)
     kw.setdefault("missing_label", f"{_REASONS['equatorial_band'].label}, |lat| < {band:g}\u00b0")
+    reduced = _reduce_time(da, kw.get("time", "mean"), "data")
+    if "ocean_mask" not in kw:
+        # Only cells inside the band are shaded as the band: elsewhere a missing value is land
+        # (the stress of a result may be filled over small islands).
+        across = _ocean_across_band(reduced, band)
+        known = _ocean_of(ds) if ds is not None else None
+        kw["ocean_mask"] = across if known is None else _aligned_and(across, known)
+    if kw.get("vmax") is None and limits_poleward_of > 0:
+        lat_name = grid_layout(reduced, argname="data").lat_name
+        far = np.abs(reduced.where(np.abs(reduced[lat_name]) >= limits_poleward_of).values)
+        far = far[np.isfinite(far)]
+        if far.size:
+            kw["vmax"] = float(np.percentile(far, kw.get("robust", 98.0)))
     return map_field(da, **kw)
+
+
+def _aligned_and(canon: xr.DataArray, other: xr.DataArray) -> xr.DataArray:
+    """``canon`` (on the canonical grid) and ``other`` (any order), on the canonical grid."""
+    lay = grid_layout(other, argname="ocean_mask")
+    o = to_canonical(other, lay).transpose(lay.lat_name, lay.lon_name).values > 0.5
+    return canon.copy(data=(canon.values > 0) & o).astype(np.int8)
+
+
+def _ocean_across_band(da: xr.DataArray, band: float) -> xr.DataArray:
+    """Ocean mask of a field left empty in the equatorial band: a band cell is ocean when the
+    rows just outside the band are ocean at its longitude on both sides."""
+    lay = grid_layout(da, argname="data")
+    c = to_canonical(da, lay).transpose(lay.lat_name, lay.lon_name)
+    ocean = np.isfinite(c.values)
+    inside = np.abs(lay.lat) < band
+    north = np.flatnonzero(lay.lat >= band)
+    south = np.flatnonzero(lay.lat <= -band)
+    if inside.any() and north.size and south.size:
+        ocean[inside] |= (ocean[north[0]] & ocean[south[-1]])[None, :]
+    return xr.DataArray(ocean.astype(np.int8), dims=(lay.lat_name, lay.lon_name),
+                        coords={lay.lat_name: lay.lat, lay.lon_name: lay.lon})
 
 
 def _equatorial_band(obj, given) -> float:
@@ -834,7 +883,9 @@ def map_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean", wi
             "Fix: pass e.g. boundary_zone_km=300, or 0 to leave the zone unshaded."
         )
     lay = grid_layout(psi, argname="streamfunction")
-    ocean = _ocean_of(ds, psi)
+    ocean = _ocean_of(ds)
+    if ocean is None:
+        ocean = psi.notnull().astype(np.int8)
     shading = []
     if "row_status" in ds and "basin_id" in ds:
         shading = _not_valid_cells(ds, lay, ocean, boundary_zone_km)
@@ -853,16 +904,18 @@ def map_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean", wi
     return fig, ax
 
 
-def _ocean_of(ds: xr.Dataset, psi: xr.DataArray) -> xr.DataArray:
+def _ocean_of(ds: xr.Dataset) -> xr.DataArray | None:
+    """The ocean of a result Dataset, from the variables that have values on all of it."""
     if "ocean_mask" in ds:
         return ds["ocean_mask"]
-    if "wind_stress_curl" in ds:
-        c = ds["wind_stress_curl"]
-        c = c.notnull().any("time") if "time" in c.dims else c.notnull()
-        return c.astype(np.int8)
+    for name in ("wind_stress_curl", "taux"):
+        if name in ds:
+            c = ds[name]
+            c = c.notnull().any("time") if "time" in c.dims else c.notnull()
+            return c.astype(np.int8)
     if "basin_id" in ds:
         return (ds["basin_id"] >= 0).astype(np.int8)
-    return psi.notnull().astype(np.int8)
+    return None
 
 
 def _not_valid_cells(ds, lay, ocean_da, boundary_zone_km):
@@ -1217,6 +1270,7 @@ def plot_hovmoller(data, *, basin=None, row_status=None, width="column", cmap=No
                                    facecolor=shade.facecolor, hatch=shade.hatch,
                                    edgecolor="0.35", lw=0, zorder=0.5)
                         handles.setdefault(shade.label, shade.patch())
+                        spans.append((st_lat[i0] - dl, st_lat[i1] + dl))
             finite_rows = np.isfinite(vals).any(axis=1)
             if finite_rows.any():
                 pad = np.median(np.diff(lat)) if lat.size > 1 else 1.0

@@ -199,6 +199,14 @@ def test_map_ekman_pumping_names_the_equatorial_band(strict, tmp_path, result):
     save(fig, tmp_path, "pumping")
 
 
+def test_map_ekman_pumping_from_a_bare_dataarray(strict, tmp_path, result):
+    # Without a Dataset the ocean in the band is inferred from the rows on either side.
+    fig, ax = plotting.map_ekman_pumping(result.ekman_pumping, width="page")
+    names = [t.get_text() for t in fig.legends[0].get_texts()]
+    assert names == ["equatorial band (f \u2192 0), |lat| < 3\u00b0"]
+    save(fig, tmp_path, "pumping_da")
+
+
 def test_map_wind_stress(strict, tmp_path, result):
     fig, ax = plotting.map_wind_stress(result)
     assert colorbar_label(fig) == "wind stress magnitude (Pa)"
@@ -322,6 +330,15 @@ def test_save_standard_figures(strict, tmp_path, result):
         "transport.png", "seasonal_transport.png"]
     assert sorted(p.name for p in (tmp_path / "figs").iterdir()) == sorted(p.name for p in paths)
     assert not plt.get_fignums()
+
+
+def test_standard_figures_of_the_real_pipeline(strict, tmp_path, world):
+    # The same figures from the toolkit's own diagnosis of the synthetic world.
+    from sverdrup_kit.pipeline import diagnose
+
+    res = diagnose(world).compute()
+    paths = plotting.save_standard_figures(res, tmp_path, width="column", dpi=80)
+    assert len(paths) == 6
 
 
 def test_global_rcparams_untouched(strict, result):
