@@ -495,8 +495,9 @@ class RowPlan:
     """The westward integral of one call, worked out from grid and mask alone.
 
     ``cells``/``run_starts``: the runs to integrate, each from its eastern cell westward (flat
-    indices j * nx + i), in ascending row order. ``group_runs``/``group_starts``/``group_slot``: which runs add up to
-    the interior transport of (basin, row) slot ``b * ny + j``.
+    indices j * nx + i), in ascending row order. ``group_runs``/``group_starts``/
+    ``group_slot``: which runs add up to the interior transport of (basin, row) slot
+    ``b * ny + j``.
     """
 
     cells: np.ndarray

@@ -121,17 +121,21 @@ def sverdrup(
         :data:`~sverdrup_kit.basins.SEPARATE_OCEAN_AREA` (1e7 km2) meet beyond a continent's
         tip they become separate basins, and the rows beyond the tip a third; smaller branches
         (gulfs) stay with the ocean they open into. Oceans joined through an archipelago (the
-        real Earth's Indonesian seas) stay one basin: use ``"earth"`` there. ``"earth"``: the Atlantic, Pacific and
-        Indian Oceans of the real Earth, both hemispheres, cut along
-        :data:`~sverdrup_kit.basins.EARTH_DIVIDING_LINES` (20E south of Cape Agulhas, 147E
-        south of Tasmania and across Bass Strait, 68W south of Cape Horn, a line through the
-        Indonesian passages from the Strait of Malacca along the Lesser Sunda Islands to near
-        Darwin, and across Panama); the Arctic and Nordic Seas north of 65.5N, the
-        Mediterranean and the Black Sea belong to none. A DataArray of basin numbers (-1 or
-        NaN outside; names from CF ``flag_values``/``flag_meanings`` when present, so the
-        ``basin_id`` of an earlier result can be passed back). A dict name -> boolean DataArray
-        (masks must not overlap) or name -> list of (lon, lat) polygon vertices in degrees
-        (a cell belongs to the first polygon that contains its centre).
+        real Earth's Indonesian seas) stay one basin: use ``"earth"`` there.
+        ``"earth"``: the Atlantic, Pacific and Indian Oceans of the real Earth, both
+        hemispheres, cut along :data:`~sverdrup_kit.basins.EARTH_DIVIDING_LINES`: 20E south of
+        Cape Agulhas, 147E south of Tasmania and across Bass Strait, 68W south of Cape Horn
+        and 70W across the Strait of Magellan, a line through the Indonesian passages from
+        the Strait of Malacca along the Lesser Sunda Islands to near Darwin, and along Central
+        America (Tehuantepec, Panama); rows ending on the lines that stand for land or a
+        shallow strait (:data:`~sverdrup_kit.basins.EARTH_COASTAL_LINES`) end on a coast,
+        rows ending on the open-ocean lines have none. The Arctic and Nordic Seas north of
+        65.5N, the Mediterranean and the Black Sea belong to none.
+        A DataArray of basin numbers (-1 or NaN outside; names from CF
+        ``flag_values``/``flag_meanings`` when present, so the ``basin_id`` of an earlier
+        result can be passed back). A dict name -> boolean DataArray (masks must not overlap)
+        or name -> list of (lon, lat) polygon vertices in degrees (a cell belongs to the first
+        polygon that contains its centre).
     rho0 : float, optional
         Reference sea-water density, kg m-3.
     equatorial_band : float, optional

@@ -93,7 +93,9 @@ def test_closed_basin_matches_the_sverdrup_relation_within_one_percent():
     assert np.allclose(ds.western_boundary_lon.isel(basin=0).values[inside] % 360, 0.0)
     # The interior transport changes sign where curl tau = 0 (derived: k tan(k (phi - phi_s))
     # = -tan(phi)), found here by bisection.
-    f = lambda p: k * np.sin(k * (p - ps)) * np.cos(p) + np.cos(k * (p - ps)) * np.sin(p)  # noqa: E731
+    def f(p):
+        return k * np.sin(k * (p - ps)) * np.cos(p) + np.cos(k * (p - ps)) * np.sin(p)
+
     lo_, hi_ = np.deg2rad(40), np.deg2rad(54.9)
     for _ in range(60):
         mid = 0.5 * (lo_ + hi_)
