@@ -142,8 +142,10 @@ def _one_point(ok_m, ok_mm, ok_p, ok_pp, f, fm1, fm2, fp1, fp2, w0, w1, w2, w3, 
 
 
 @_jit
-def _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, out):
+def _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, out, todo):
     """Curl along row j of field t into out[t, j]; returns the number of isolated derivatives.
+
+    ``todo`` is scratch space for nx + 2 cell indices.
 
     Most ocean cells have ocean on all four sides and take centred differences in both
     directions. A first, branch-free (vectorised) sweep computes exactly that everywhere,
@@ -172,10 +174,24 @@ def _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, out):
     x_m, x_p, x_mm, x_pp = tx[t, jm1], tx[t, jp1], tx[t, jm2], tx[t, jp2]
     y_m, y_p, y_mm, y_pp = ty[t, jm1], ty[t, jp1], ty[t, jm2], ty[t, jp2]
     xr, yr = tx[t, j], ty[t, j]
+    # Cells left to do: every cell of a row the first sweep skipped; otherwise the two ends
+    # and the ocean cells it left NaN (land is NaN already). Listed without branches, since
+    # land and ocean alternate along a row.
+    m = 0
+    if first == last:
+        for i in range(nx):
+            todo[i] = i
+        m = nx
+    else:
+        todo[0] = 0
+        todo[1] = nx - 1
+        m = 2
+        for i in range(first, last):
+            todo[m] = i
+            m += np.isnan(row[i]) & np.isfinite(xr[i]) & np.isfinite(yr[i])
     n_iso = 0
-    for i in range(nx):
-        if first <= i < last and not np.isnan(row[i]):
-            continue
+    for k in range(m):
+        i = todo[k]
         if not _ocean(xr[i], yr[i]):
             row[i] = np.nan
             continue
@@ -223,11 +239,12 @@ def _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, out):
 @_jit
 def _curl_rows(tx, ty, cos, rcos, wlon, wlat, periodic, out, start, stop):
     """Curl on rows start..stop-1 of the stack of fields flattened to (time x lat) rows."""
-    ny = tx.shape[1]
+    ny, nx = tx.shape[1], tx.shape[2]
+    todo = np.empty(nx + 2, dtype=np.int64)
     n_iso = 0
     for k in range(start, stop):
         t = k // ny
-        n_iso += _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, k - t * ny, out)
+        n_iso += _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, k - t * ny, out, todo)
     return n_iso
 
 
@@ -302,14 +319,16 @@ def _sverdrup_rows(
     ny, nx = tx.shape[1], tx.shape[2]
     n_runs = run_starts.size
     m = cells.size
+    todo = np.empty(nx + 2, dtype=np.int64)
     n_iso = 0
     for k in range(start, stop):
         t = k // ny
         j = k - t * ny
-        n_iso += _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, curl)
+        n_iso += _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, curl, todo)
         crow, vrow = curl[t, j], v[t, j]
+        rb = rho0_beta[j]  # a local: the stores below could alias the array
         for i in range(nx):
-            vrow[i] = crow[i] / rho0_beta[j]
+            vrow[i] = crow[i] / rb
         # psi is NaN outside runs; the runs of this row overwrite their cells.
         prow = psi[t, j]
         for i in range(nx):
