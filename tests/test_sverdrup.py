@@ -653,3 +653,12 @@ def test_basin_masks_with_missing_values_count_as_outside(world):
     ds = sverdrup(tx, ty, basins={"b0": m})
     np.testing.assert_allclose(ds.interior_transport.isel(basin=0),
                                auto.interior_transport.isel(basin=0), equal_nan=True)
+
+
+def test_longitude_before_latitude_in_the_dimension_order(world):
+    tx, ty, mask = world
+    ref = sverdrup(tx, ty, ocean_mask=mask)
+    ds = sverdrup(tx.T, ty.T, ocean_mask=mask.T)
+    assert ds.streamfunction.dims == ("lon", "lat")
+    np.testing.assert_array_equal(ds.streamfunction.T.values, ref.streamfunction.values)
+    np.testing.assert_array_equal(ds.interior_transport.values, ref.interior_transport.values)
