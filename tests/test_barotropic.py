@@ -7,6 +7,7 @@ import numpy as np
 import pytest
 import xarray as xr
 
+from sverdrup_kit import wind_stress_curl
 from sverdrup_kit.barotropic import boundary_current, solve_barotropic, solve_basin
 from sverdrup_kit.boundary_layers import munk_width, stommel_basin
 from sverdrup_kit.grid import beta_parameter
@@ -141,6 +142,46 @@ def test_sphere_munk_interior_is_sverdrup_and_boundary_returns_it(A_H):
     res = np.abs(out.sverdrup_residual / (out.wind_stress_curl / RHO0))
     assert float(res.sel(lat=slice(25, 35), lon=slice(-60, -35)).max()) < 1e-2
     assert float(res.sel(lat=30, method="nearest").max()) > 1
+
+
+def test_interior_matches_the_toolkits_sverdrup_integral():
+    # Cross-check with sverdrup_kit.sverdrup.sverdrup (an independent westward integral from the
+    # eastern coast): beyond the boundary layer the solved streamfunction matches its
+    # streamfunction to 1% of the gyre's maximum (Munk friction, nearly inviscid interior), and
+    # the coast-to-coast Sverdrup transports agree to 2% (its coast lies on the ocean cell's
+    # face, ours on the first land point: one cell of 100 apart).
+    from sverdrup_kit.sverdrup import sverdrup
+
+    da = sector()
+    ocean = np.isfinite(da)
+    taux = (-0.1 * np.cos(np.pi * (da.lat - 15) / 30)).broadcast_like(da).where(ocean)
+    taux = taux.assign_attrs(units="Pa")
+    tauy = xr.zeros_like(taux).where(ocean).assign_attrs(units="Pa")
+    sol = solve_barotropic(wind_stress_curl(taux, tauy), A_H=4e3)
+    sv = sverdrup(taux, tauy)
+    bc = boundary_current(sol)
+    for lat in (25.25, 30.25, 35.25):
+        row = bc.sel(lat=lat)
+        dist = np.deg2rad(sol.lon - row.western_coast) * 6.371e6 * np.cos(np.deg2rad(lat))
+        mine = sol.streamfunction.sel(lat=lat)
+        theirs = sv.streamfunction.sel(lat=lat)
+        inside = (dist > row.interior_start) & np.isfinite(theirs)
+        err = float(np.abs(mine - theirs).where(inside).max() / np.abs(theirs).max())
+        assert err < 0.01, (lat, err)
+        t = float(sv.interior_transport.isel(basin=0).sel(lat=lat))
+        assert float(row.sverdrup_transport) == pytest.approx(t, rel=0.02)
+
+
+def test_southern_hemisphere_gyre_closes_too():
+    # The mirror image of the northern sector basin (derived: beta > 0 in both hemispheres, so
+    # the current stays on the western side and runs south).
+    da = sector()
+    sh = -da.assign_coords(lat=-da.lat.values).sortby("lat")
+    bc = boundary_current(solve_barotropic(sh, A_H=8e3)).sel(lat=slice(-35, -25))
+    assert np.all(bc.peak_northward_velocity < 0)
+    np.testing.assert_allclose(bc.interior_ratio, 1.0, atol=0.02)
+    np.testing.assert_allclose(bc.boundary_transport, -bc.sverdrup_interior_transport,
+                               rtol=0.02)
 
 
 def test_three_classic_cases_symmetry_and_western_intensification():
