@@ -10,6 +10,7 @@ Results are climatological diagnostics for research, not forecasts for navigatio
 marine operations.
 """
 
+from .basins import basin_mask
 from .constants import AIR_DENSITY, EARTH_RADIUS, OMEGA, RHO0, SVERDRUP
 from .ekman import ekman
 from .grid import SphericalGrid, beta_parameter, coriolis_parameter
@@ -18,5 +19,7 @@ from .operators import curl_on_sphere, wind_stress_curl
 from .output import write_netcdf
 from .sources import TimeDecodingWarning, open_stress, open_winds
 from .stress import DRAG_LAWS, DragLaw, MonthlyMeanWindWarning, drag_coefficient, wind_stress
+from .sverdrup import sverdrup
+from .pipeline import diagnose
 
 __version__ = "0.1.0"

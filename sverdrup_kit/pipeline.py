@@ -1,0 +1,109 @@
+"""The whole diagnosis in one call: winds (or stress) to boundary-current transports.
+
+This is what the command line and the first notebook run. It only calls the public functions
+of the other modules, in the order of the data path.
+"""
+
+from __future__ import annotations
+
+import warnings
+
+import xarray as xr
+
+from . import constants
+from .ekman import DEFAULT_EQUATORIAL_BAND, ekman
+from .stress import wind_stress
+from .sverdrup import sverdrup
+
+__all__ = ["diagnose"]
+
+
+def _stress_from(winds: xr.Dataset, *, drag, air_density, use_speed) -> xr.Dataset:
+    if "taux" in winds and "tauy" in winds:
+        return winds[["taux", "tauy"]]
+    if not ("u" in winds and "v" in winds):
+        raise ValueError(
+            "winds: expected a Dataset with 'u' and 'v' (from open_winds) or 'taux' and 'tauy' "
+            f"(from open_stress), found variables {list(winds.data_vars)}. Fix: open the file "
+            "with sverdrup_kit.open_winds or open_stress, or rename the variables."
+        )
+    speed = winds["wind_speed"] if use_speed and "wind_speed" in winds else None
+    return wind_stress(winds["u"], winds["v"], drag=drag, air_density=air_density, speed=speed)
+
+
+def diagnose(
+    winds: xr.Dataset,
+    *,
+    drag="large-pond-1981",
+    air_density: float = constants.AIR_DENSITY,
+    use_speed: bool = True,
+    basins=None,
+    ocean_mask=None,
+    rho0: float = constants.RHO0,
+    equatorial_band: float = DEFAULT_EQUATORIAL_BAND,
+) -> xr.Dataset:
+    """Run the data path on a wind (or stress) climatology.
+
+    Parameters
+    ----------
+    winds : xarray.Dataset
+        From :func:`~sverdrup_kit.open_winds` (``u``, ``v``, optionally ``wind_speed``) or
+        :func:`~sverdrup_kit.open_stress` (``taux``, ``tauy``), with or without ``time``.
+    drag, air_density
+        Passed to :func:`~sverdrup_kit.stress.wind_stress` (ignored when stress is given).
+    use_speed : bool, optional
+        Use the scalar-mean ``wind_speed`` in the bulk formula when the data carry it (the
+        better choice for monthly climatologies).
+    basins, ocean_mask, rho0, equatorial_band
+        Passed to :func:`~sverdrup_kit.sverdrup.sverdrup` and :func:`~sverdrup_kit.ekman.ekman`.
+
+    Returns
+    -------
+    xarray.Dataset
+        Time-mean stress, curl, Ekman fields and every Sverdrup result, plus, when the input
+        has a ``time`` dimension, ``interior_transport_by_time`` (time, basin, lat): the
+        Sverdrup interior transport of each time step (the seasonal cycle of a climatology).
+        Lazy where the input is.
+
+    Notes
+    -----
+    The Sverdrup and Ekman balances are linear in the stress, so the diagnosis of the
+    time-mean stress equals the time mean of the diagnoses. The stress itself is quadratic in
+    the wind: it is computed for each time step before averaging.
+    """
+    if not isinstance(winds, xr.Dataset):
+        raise TypeError(
+            f"winds: expected an xarray.Dataset, found {type(winds).__name__}. Fix: open the "
+            "file with sverdrup_kit.open_winds(path)."
+        )
+    stress = _stress_from(winds, drag=drag, air_density=air_density, use_speed=use_speed)
+    has_time = "time" in stress.dims
+    with warnings.catch_warnings():
+        # A mean of a few all-land columns is NaN by design; that is not news to the user.
+        warnings.simplefilter("ignore", RuntimeWarning)
+        mean = stress.mean("time", keep_attrs=True) if has_time else stress
+    if has_time:
+        # Land is where every time step is missing; a cell observed in some months only is
+        # averaged over the months it has, which the attrs say.
+        for name in ("taux", "tauy"):
+            mean[name].attrs["cell_methods"] = "time: mean"
+    sv = sverdrup(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
+                  equatorial_band=equatorial_band)
+    ek = ekman(mean["taux"], mean["tauy"], rho0=rho0, equatorial_band=equatorial_band)
+    out = xr.merge([mean, ek, sv], compat="override", combine_attrs="drop_conflicts")
+    if has_time:
+        monthly = sverdrup(stress["taux"], stress["tauy"], basins=basins, ocean_mask=ocean_mask,
+                           rho0=rho0, equatorial_band=equatorial_band)
+        out["interior_transport_by_time"] = monthly["interior_transport"].assign_attrs(
+            monthly["interior_transport"].attrs,
+            long_name="Sverdrup interior transport of each time step",
+        )
+    out.attrs.update(
+        title="Wind-driven circulation diagnosed from a wind climatology",
+        drag_law=str(stress.attrs.get("drag_law", stress["taux"].attrs.get("drag_law", "given"))),
+        rho0=rho0,
+        equatorial_band=equatorial_band,
+        source_winds=str(winds.attrs.get("source", winds.attrs.get("title", "unknown"))),
+    )
+    return out
+
