@@ -80,6 +80,10 @@ def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = Tru
     os.close(fd)
     try:
         out.to_netcdf(tmp, format="NETCDF4", encoding=encoding)
+        # mkstemp creates the file private; give it the permissions a plain open() would.
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)
         os.replace(tmp, path)
     except BaseException:
         if os.path.exists(tmp):

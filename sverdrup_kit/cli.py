@@ -1,0 +1,170 @@
+"""Command line: run the whole diagnosis on a wind file and write results and figures.
+
+``sverdrup-kit diagnose FILE --out DIR`` or ``sverdrup-kit diagnose --synthetic --out DIR``.
+Bad arguments and unreadable files give one clear line on stderr and exit status 2; nothing
+is left half-written.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import time
+import warnings
+from pathlib import Path
+
+import numpy as np
+
+EXIT_USAGE = 2
+
+
+class CommandError(Exception):
+    """An error the user can fix, reported as one line."""
+
+
+def _drag_arg(text: str):
+    try:
+        return float(text)
+    except ValueError:
+        return text
+
+
+def _parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="sverdrup-kit",
+        description="Wind-driven ocean circulation diagnostics from a gridded wind climatology. "
+        "Research diagnostics, not forecasts for navigation or marine operations.",
+    )
+    sub = p.add_subparsers(dest="command", required=True)
+    d = sub.add_parser(
+        "diagnose",
+        help="wind file in; stress, curl, Ekman, Sverdrup transport NetCDF and figures out",
+        description="Run the whole diagnosis: stress from a drag law, curl and Ekman fields, "
+        "Sverdrup transport integrated westward from each basin's eastern coast, and the "
+        "western boundary current that returns it.",
+    )
+    src = d.add_mutually_exclusive_group(required=True)
+    src.add_argument("source", nargs="?", help="wind or wind-stress file (NetCDF), or a URL")
+    src.add_argument("--synthetic", action="store_true",
+                     help="use the bundled synthetic world instead of a file")
+    d.add_argument("--out", required=True, help="folder for results.nc and the figures")
+    d.add_argument("--stress", action="store_true",
+                   help="the file holds wind stress, not wind (skips the drag law)")
+    d.add_argument("--u", help="name of the eastward wind (or stress) variable, if not found")
+    d.add_argument("--v", help="name of the northward wind (or stress) variable, if not found")
+    d.add_argument("--drag", type=_drag_arg, default="large-pond-1981",
+                   help="drag law name or a constant drag coefficient (default: large-pond-1981)")
+    d.add_argument("--air-density", type=float, default=None, help="kg m-3 (default 1.22)")
+    d.add_argument("--basins", default=None,
+                   help="'earth' for named Atlantic/Pacific/Indian basins; default: connected "
+                        "ocean regions")
+    d.add_argument("--rho0", type=float, default=None, help="sea-water density, kg m-3")
+    d.add_argument("--no-figures", action="store_true", help="write the NetCDF only")
+    d.add_argument("--no-progress", action="store_true",
+                   help="do not draw a progress bar for computations longer than a second")
+    d.add_argument("--quiet", action="store_true", help="print only errors")
+    return p
+
+
+def _open(args):
+    from . import open_stress, open_winds
+    from .synthetic import load_world
+
+    if args.synthetic:
+        return load_world()
+    src = args.source
+    if not (str(src).startswith(("http://", "https://")) or Path(src).exists()):
+        raise CommandError(f"source: no such file '{src}'. Fix: check the path.")
+    try:
+        if args.stress:
+            return open_stress(src, taux=args.u, tauy=args.v)
+        return open_winds(src, u=args.u, v=args.v)
+    except OSError as err:
+        raise CommandError(
+            f"source: could not read '{src}' as NetCDF ({err.__class__.__name__}: {err}). "
+            "Fix: pass a NetCDF file of wind or wind stress."
+        ) from None
+
+
+def _summary(res, say) -> None:
+    lats = [-40, -30, -20, 20, 30, 40, 50]
+    tr = res["interior_transport"]
+    say("interior Sverdrup transport (Sv, + northward); the western boundary current carries "
+        "minus this:")
+    header = "  basin            " + "".join(f"{la:>7d}" for la in lats)
+    say(header)
+    for b in tr["basin"].values:
+        row = tr.sel(basin=b)
+        cells = []
+        for la in lats:
+            if row.lat.min() <= la <= row.lat.max():
+                val = float(row.sel(lat=la, method="nearest"))
+                cells.append(f"{val:7.1f}" if np.isfinite(val) else "      -")
+            else:
+                cells.append("      -")
+        say(f"  {str(b):<16s} " + "".join(cells))
+    if "gyre_boundary_lat" in res:
+        for b in tr["basin"].values:
+            g = res["gyre_boundary_lat"].sel(basin=b).values
+            g = g[np.isfinite(g)]
+            if g.size:
+                say(f"  gyre boundaries in {b}: " + ", ".join(f"{x:.1f}" for x in g) + " deg N")
+
+
+def _run_diagnose(args) -> int:
+    from .output import write_netcdf
+    from .pipeline import diagnose
+
+    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
+    out = Path(args.out)
+    if out.exists() and not out.is_dir():
+        raise CommandError(f"--out: expected a folder, found a file '{out}'. Fix: pick a folder.")
+    t0 = time.perf_counter()
+    say(f"reading {'the bundled synthetic world' if args.synthetic else args.source}")
+    winds = _open(args)
+    kw = {}
+    if args.air_density is not None:
+        kw["air_density"] = args.air_density
+    if args.rho0 is not None:
+        kw["rho0"] = args.rho0
+    say("computing stress, curl, Ekman and Sverdrup transports")
+    res = diagnose(winds, drag=args.drag, basins=args.basins, **kw)
+    from ._progress import progress
+
+    with progress(enabled=not (args.no_progress or args.quiet)):
+        res = res.compute()
+    out.mkdir(parents=True, exist_ok=True)
+    path = write_netcdf(res, out / "results.nc")
+    say(f"wrote {path}")
+    _summary(res, say)
+    if not args.no_figures:
+        from .plotting import save_standard_figures
+
+        for p in save_standard_figures(res, out):
+            say(f"wrote {p}")
+    say(f"done in {time.perf_counter() - t0:.1f} s")
+    return 0
+
+
+def main(argv=None) -> int:
+    """Entry point of the ``sverdrup-kit`` command."""
+    args = _parser().parse_args(argv)
+    os.environ.setdefault("MPLBACKEND", "Agg")
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("default")
+            if args.command == "diagnose":
+                return _run_diagnose(args)
+    except CommandError as err:
+        print(f"sverdrup-kit: {err}", file=sys.stderr)
+        return EXIT_USAGE
+    except (ValueError, TypeError, KeyError, FileNotFoundError) as err:
+        msg = str(err).strip().splitlines()[0] if str(err).strip() else err.__class__.__name__
+        print(f"sverdrup-kit: {msg}", file=sys.stderr)
+        return EXIT_USAGE
+    return EXIT_USAGE
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,68 @@
+"""The batch command: results that reopen, pass a CF sanity check, and one-line errors."""
+
+import subprocess
+import sys
+
+import numpy as np
+import pytest
+import xarray as xr
+
+from sverdrup_kit.cli import main
+
+
+@pytest.fixture(scope="module")
+def synthetic_run(tmp_path_factory):
+    out = tmp_path_factory.mktemp("run")
+    code = main(["diagnose", "--synthetic", "--out", str(out), "--quiet"])
+    assert code == 0
+    return out
+
+
+def test_results_reopen_and_units_parse_with_udunits(synthetic_run):
+    # cf-units wraps UDUNITS-2, the units library the CF conventions name.
+    cf_units = pytest.importorskip("cf_units")
+    with xr.open_dataset(synthetic_run / "results.nc") as ds:
+        assert ds.attrs["Conventions"].startswith("CF-")
+        assert "navigation" in ds.attrs["purpose"]
+        for name, var in ds.variables.items():
+            units = var.attrs.get("units")
+            if units is not None:
+                cf_units.Unit(units)  # raises on anything UDUNITS cannot parse
+            if name in ds.data_vars and var.dtype.kind == "f":
+                assert "long_name" in var.attrs, name
+                assert units is not None, name
+        # Sverdrup is not "Sv" (sievert in UDUNITS): the streamfunction is convertible to m3 s-1.
+        assert cf_units.Unit(ds.streamfunction.attrs["units"]).is_convertible("m3 s-1")
+        assert ds.interior_transport.dims[-2:] == ("basin", "lat")
+        assert np.isfinite(ds.interior_transport).any()
+
+
+def test_figures_are_written(synthetic_run):
+    pngs = sorted(p.name for p in synthetic_run.glob("*.png"))
+    assert len(pngs) >= 3, pngs
+
+
+def test_bad_file_gives_one_clear_line(tmp_path, capsys):
+    bogus = tmp_path / "not_netcdf.nc"
+    bogus.write_text("this is not a NetCDF file")
+    code = main(["diagnose", str(bogus), "--out", str(tmp_path / "o")])
+    err = capsys.readouterr().err.strip()
+    assert code == 2
+    assert len(err.splitlines()) == 1, err
+    assert "not_netcdf.nc" in err
+    assert not (tmp_path / "o" / "results.nc").exists()
+
+
+def test_missing_file_and_bad_drag_law(tmp_path, capsys):
+    assert main(["diagnose", str(tmp_path / "nope.nc"), "--out", str(tmp_path)]) == 2
+    assert "no such file" in capsys.readouterr().err
+    code = main(["diagnose", "--synthetic", "--drag", "made-up-law", "--out", str(tmp_path),
+                 "--no-figures"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and len(err.splitlines()) == 1 and "made-up-law" in err
+
+
+def test_entry_point_runs_as_a_module():
+    proc = subprocess.run([sys.executable, "-m", "sverdrup_kit.cli", "--help"],
+                          capture_output=True, text=True, check=True)
+    assert "diagnose" in proc.stdout
