@@ -23,7 +23,9 @@ finite-volume five-point operator with the grid's cell widths and areas (conserv
 over a region become line integrals around it); ``beta dpsi/dx`` is a centred difference. The
 biharmonic is the Laplacian of the vorticity, with the wall vorticity from a ghost point beyond
 the wall: ``zeta_wall = 2 (psi_1 - psi_wall) / h**2`` for no-slip (Thom's formula, from the
-mirror ghost ``psi_ghost = psi_1``), ``zeta_wall = 0`` for free-slip.
+mirror ghost ``psi_ghost = psi_1``), summed over the axes along which the land point has an
+ocean neighbour, and ``zeta_wall = 0`` for free-slip. A one-point land barrier with ocean on
+both sides takes the plain second difference (the mean of its two sides' no-slip values).
 
 Coasts and islands
 ------------------
@@ -53,6 +55,8 @@ References
 Stommel, H. (1948). The westward intensification of wind-driven ocean currents. Transactions,
 American Geophysical Union, 29, 202-206.
 Munk, W. H. (1950). On the wind-driven ocean circulation. Journal of Meteorology, 7, 79-93.
+Thom, A. (1933). The flow past circular cylinders at low speeds. Proceedings of the Royal
+Society of London A, 141, 651-669 (the wall-vorticity formula).
 Godfrey, J. S. (1989). A Sverdrup model of the depth-integrated flow for the world ocean allowing
 for island circulations. Geophysical and Astrophysical Fluid Dynamics, 45, 89-112.
 """
@@ -186,7 +190,6 @@ class _Operator:
             return out.ravel()
 
         east, west, north, south = nb(0, 1), nb(0, -1), nb(1, 0), nb(-1, 0)
-        self.nbrs = (east, west, north, south)
         me = idx.ravel()
         area = m.area.ravel()
         self.area = area
@@ -267,24 +270,25 @@ class _Operator:
             (north, south, wn, ws, self.hy_n, self.hy_s),
         )
         land = ~oc
-        for plus, minus, wp, wm, hp, hm in pairs:
+        # Free-slip walls have zero vorticity: only no-slip walls add entries.
+        for plus, minus, wp, wm, hp, hm in pairs if boundary == "no-slip" else ():
             op = (plus >= 0) & oc[np.maximum(plus, 0)]
             om = (minus >= 0) & oc[np.maximum(minus, 0)]
             both = land & op & om
-            # A one-point land barrier between two ocean points: the plain second difference.
+            # A one-point land barrier between two ocean points: the plain second difference,
+            # the mean of the two sides' no-slip values on a uniform grid.
             for sel, nbr, wgt in ((both, plus, wp), (both, minus, wm)):
                 k = me[sel]
                 c = wgt[sel] / area[sel]
                 rows += [k, k]
                 cols += [nbr[sel], k]
                 vals += [c, -c]
-            if boundary == "no-slip":
-                for sel, nbr, h in ((land & op & ~om, plus, hp), (land & om & ~op, minus, hm)):
-                    k = me[sel]
-                    c = 2.0 / h[sel] ** 2
-                    rows += [k, k]
-                    cols += [nbr[sel], k]
-                    vals += [c, -c]
+            for sel, nbr, h in ((land & op & ~om, plus, hp), (land & om & ~op, minus, hm)):
+                k = me[sel]
+                c = 2.0 / h[sel] ** 2
+                rows += [k, k]
+                cols += [nbr[sel], k]
+                vals += [c, -c]
         return sp.csr_matrix(
             (np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))), shape=(n, n)
         )
@@ -823,8 +827,11 @@ def solve_barotropic(
         ``streamfunction`` (1e6 m3 s-1, zero on the main coast, standard_name
         ocean_barotropic_streamfunction), ``eastward_transport``/``northward_transport``
         (m2 s-1), ``eastward_velocity``/``northward_velocity`` (m s-1), ``sverdrup_residual``
-        (m s-2), ``land_mass``, ``coriolis_parameter`` and ``beta`` (lat); parameters and timings
-        in attrs.
+        (m s-2), ``land_mass`` (-1 ocean, 0 main coast, k island k), ``wind_stress_curl``,
+        ``coriolis_parameter`` and ``beta`` (lat). Attributes: the parameters,
+        ``island_streamfunction`` (1e6 m3 s-1, island k at position k - 1),
+        ``island_wind_circulation_from`` (how each island was forced), ``n_unknowns`` and the
+        seconds spent assembling and factorising.
 
     Notes
     -----
