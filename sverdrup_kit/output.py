@@ -23,10 +23,12 @@ def _prepare(ds: xr.Dataset) -> xr.Dataset:
     from . import __version__
 
     out = ds.copy()
-    for name, var in out.variables.items():
-        if var.dtype == bool:
-            out[name] = var.astype("int8").assign_attrs(var.attrs)
-        for key, value in list(var.attrs.items()):
+    for name in list(out.variables):
+        if out[name].dtype == bool:
+            # NetCDF has no boolean type: store 0/1 and say so the CF way.
+            out[name] = out[name].astype("int8").assign_attrs(
+                out[name].attrs, flag_values=np.array([0, 1], "int8"), flag_meanings="false true")
+        for key, value in list(out[name].attrs.items()):
             if isinstance(value, (bool, np.bool_)):
                 out[name].attrs[key] = int(value)
             elif value is None:
