@@ -25,6 +25,7 @@ import os
 import re
 import tempfile
 import warnings
+from contextlib import contextmanager
 from functools import lru_cache
 from pathlib import Path
 from typing import NamedTuple
@@ -68,17 +69,17 @@ FIGURE_WIDTHS = {"column": 3.5, "page": 7.2}
 
 SECONDS_PER_YEAR = 365.25 * 86400.0
 
-class Shade(NamedTuple):
+
+class _Shade(NamedTuple):
     """How a region where the Sverdrup relation fails is drawn and named."""
 
     label: str
     facecolor: str
     hatch: str | None
-    alpha: float = 1.0
 
     def patch(self, label: str | None = None) -> mpatches.Patch:
-        return mpatches.Patch(facecolor=self.facecolor, hatch=self.hatch, alpha=self.alpha,
-                              edgecolor="0.35", linewidth=0.4, label=label or self.label)
+        return mpatches.Patch(facecolor=self.facecolor, hatch=self.hatch, edgecolor="0.35",
+                              linewidth=0.4, label=label or self.label)
 
 
 _DIMENSIONLESS = {"1", "", "dimensionless", "none"}
@@ -90,15 +91,15 @@ _SVERDRUP_UNITS = {"1e6 m3 s-1": 1.0, "1e6 m3/s": 1.0, "sverdrup": 1.0, "sverdru
 #: How each row_status meaning is named on figures and how its region is shaded: hatching on a
 #: pale neutral ground, so that it cannot be mistaken for a value of a diverging colour map.
 _REASONS = {
-    "equatorial_band": Shade("equatorial band (f \u2192 0)", "#ececec", "...."),
-    "no_eastern_coast": Shade("no eastern coast", "#ececec", "\\\\\\"),
-    "too_narrow": Shade("basin too narrow", "#ececec", "xxxx"),
-    "outside": Shade("outside the basins", "#f7f7f7", "||||"),
+    "equatorial_band": _Shade("equatorial band (f \u2192 0)", "#ececec", "...."),
+    "no_eastern_coast": _Shade("no eastern coast", "#ececec", "\\\\\\"),
+    "too_narrow": _Shade("basin too narrow", "#ececec", "xxxx"),
+    "outside": _Shade("outside the basins", "#f7f7f7", "||||"),
 }
 _SKIP_REASONS = {"valid", "no_ocean", "ok", "land"}
 #: The boundary-current zone is a strip one or two cells wide on coarse grids: a solid colour
 #: that no diverging map uses keeps it visible at column width.
-_BOUNDARY_ZONE = Shade("western boundary-current zone", "#e6ab02", None)
+_BOUNDARY_ZONE = _Shade("western boundary-current zone", "#e6ab02", None)
 _LAND_COLOUR = "#bdbdbd"
 _GSHHS_FILES = ("GSHHS_c_L1.shp", "GSHHS_c_L1.shx", "GSHHS_c_L1.dbf")
 
@@ -203,6 +204,8 @@ def _levels(values: np.ndarray, *, robust: float, symmetric: bool, vmax=None):
         )
     if not 0 < robust <= 100:
         raise ValueError(f"robust: expected a percentile in (0, 100], found {robust!r}.")
+    if vmax is not None and not (np.isfinite(vmax) and vmax > 0):
+        raise ValueError(f"vmax: expected a positive colour limit, found {vmax!r}.")
     if vmax is None:
         vmax = float(np.percentile(np.abs(finite) if symmetric else finite, robust))
         if vmax <= 0:
@@ -275,33 +278,45 @@ def _reduce_time(da: xr.DataArray, time, argname: str) -> xr.DataArray:
     )
 
 
-class _quiet_mean:
+@contextmanager
+def _quiet_mean():
     """Silence the 'Mean of empty slice' warning of all-missing columns, and only that."""
-
-    def __enter__(self):
-        self._cm = warnings.catch_warnings()
-        self._cm.__enter__()
+    with warnings.catch_warnings():
         warnings.filterwarnings("ignore", message="Mean of empty slice", category=RuntimeWarning)
-        return self
-
-    def __exit__(self, *exc):
-        return self._cm.__exit__(*exc)
+        yield
 
 
 def _canonical_2d(da: xr.DataArray, argname: str):
-    """(lat, lon, values) on ascending latitude and increasing longitude."""
-    extra = [d for d in da.dims if d not in da.coords or da[d].ndim != 1]
+    """(lat, lon, values, periodic) on ascending latitude and increasing longitude."""
     lay = grid_layout(da, argname=argname)
-    c = to_canonical(da, lay)
-    others = [d for d in c.dims if d not in (lay.lat_name, lay.lon_name)]
-    if others or extra:
+    others = [d for d in da.dims if d not in (lay.lat_name, lay.lon_name)]
+    if others:
         raise ValueError(
             f"{argname}: expected a (lat, lon) field for a map, found extra dimensions "
-            f"{others or extra}. Fix: select one, e.g. {argname}.isel({(others or extra)[0]}=0), "
-            "or average it."
+            f"{others}. Fix: select one, e.g. {argname}.isel({others[0]}=0), or average it."
         )
-    c = c.transpose(lay.lat_name, lay.lon_name)
+    c = to_canonical(da, lay).transpose(lay.lat_name, lay.lon_name)
     return lay.lat, lay.lon, np.asarray(c.values, dtype=np.float64), lay.periodic
+
+
+def _mask_like(mask: xr.DataArray, lat: np.ndarray, lon: np.ndarray, argname: str):
+    """Boolean (lat, lon) array of ``mask`` > 0.5 on a field's canonical grid.
+
+    The mask may use another latitude order or longitude convention; its cells must be the
+    field's cells.
+    """
+    ml = grid_layout(mask, argname=argname)
+    m = to_canonical(mask, ml).transpose(ml.lat_name, ml.lon_name).values
+    same_lat = ml.lat.shape == lat.shape and np.allclose(ml.lat, lat, atol=1e-6)
+    dist = np.abs((lon[:, None] - ml.lon[None, :] + 180.0) % 360.0 - 180.0)
+    cols = np.argmin(dist, axis=1)
+    if not same_lat or ml.lon.size != lon.size or dist[np.arange(lon.size), cols].max() > 1e-6:
+        raise ValueError(
+            f"{argname}: expected the grid of the data ({lat.size} x {lon.size}), found "
+            f"{ml.lat.size} x {ml.lon.size} with other latitudes or longitudes. Fix: pass the "
+            "mask of the same grid, e.g. ds['ocean_mask']."
+        )
+    return np.asarray(m, dtype=float)[:, cols] > 0.5
 
 
 def _edges(x: np.ndarray, *, clip=None) -> np.ndarray:
@@ -321,7 +336,7 @@ class _MapGrid:
         self.lat_e = _edges(lat, clip=(-90, 90))
         if periodic:
             # Put the seam of the map through the longitude with most land, so that basins are
-            # drawn whole (through Aurelia on the synthetic world, Africa-Europe on Earth).
+            # drawn whole (through a continent on the synthetic world, Africa-Europe on Earth).
             band = np.abs(lat) < 60
             frac = land[band].mean(axis=0) if band.any() else land.mean(axis=0)
             self.shift = int(np.argmax(frac))
@@ -455,15 +470,25 @@ def _coastline_mode(coastlines: str, lat, lon, land, periodic=True) -> str:
     return coastlines
 
 
-def _new_map(width, projection, grid: _MapGrid, *, height_ratio=0.62, central_longitude=None):
+def _new_map(width, projection, grid: _MapGrid, *, central_longitude=None):
     w = _figure_width(width)
     fs = _fonts(w)
     cl = grid.central_longitude if central_longitude is None else float(central_longitude)
     proj = _projection(projection, cl)
-    fig = plt.figure(figsize=(w, w * height_ratio), layout="constrained")
+    # Height: the map's own aspect at 88 % of the width, plus room for labels and colour bar.
+    if grid.periodic:
+        aspect = 0.5
+    else:
+        lat_span = grid.lat_e[-1] - grid.lat_e[0]
+        aspect = float(np.clip(lat_span / (grid.lon_e[-1] - grid.lon_e[0]), 0.3, 1.5))
+    height = 0.88 * w * aspect + 0.55 + 0.06 * w
+    fig = plt.figure(figsize=(w, height), layout="constrained")
     ax = fig.add_subplot(1, 1, 1, projection=proj)
-    ax.set_global() if grid.periodic else ax.set_extent(
-        [grid.lon_e[0], grid.lon_e[-1], grid.lat_e[0], grid.lat_e[-1]], crs=ccrs.PlateCarree())
+    if grid.periodic:
+        ax.set_global()
+    else:
+        ax.set_extent([grid.lon_e[0], grid.lon_e[-1], grid.lat_e[0], grid.lat_e[-1]],
+                      crs=ccrs.PlateCarree())
     return fig, ax, fs
 
 
@@ -494,7 +519,7 @@ def _subcentres(edges: np.ndarray, k: int) -> np.ndarray:
 
 def _gridlines(ax, fs, grid: _MapGrid, width_in: float):
     # Meridians crowd together along the bottom edge of a Robinson map, so its longitude labels
-    # need twice the spacing of a rectangular map.
+    # need half as much again of the spacing of a rectangular map.
     span = grid.lon_e[-1] - grid.lon_e[0]
     per_label = 360.0 / (4 if width_in < 5 else 6)
     if not isinstance(ax.projection, ccrs.PlateCarree):
@@ -519,8 +544,14 @@ def _colorbar(fig, ax, mappable, label, fs, *, extend, ticks=None):
                       pad=0.02, extend=extend, ticks=ticks)
     cb.set_label(label, fontsize=fs["base"])
     cb.ax.tick_params(labelsize=fs["small"], width=0.5, length=2)
+    cb.ax.xaxis.set_major_formatter(_plain_formatter())
     cb.outline.set_linewidth(0.5)
     return cb
+
+
+def _plain_formatter():
+    """Tick labels without trailing zeros ('1.5', not '1.50'), with a true minus sign."""
+    return mticker.FuncFormatter(lambda x, _pos: f"{x:g}".replace("-", "\u2212"))
 
 
 def _refined(grid: _MapGrid, mask: np.ndarray, k: int = 4):
@@ -529,11 +560,11 @@ def _refined(grid: _MapGrid, mask: np.ndarray, k: int = 4):
     return _subcentres(grid.lon_e, k), _subcentres(grid.lat_e, k), fine
 
 
-def _shade_cells(ax, grid: _MapGrid, mask: np.ndarray, shade: Shade, label=None):
+def _shade_cells(ax, grid: _MapGrid, mask: np.ndarray, shade: _Shade, label=None):
     """Shade grid cells in the style of ``shade`` and return a legend handle."""
     lon_f, lat_f, fine = _refined(grid, mask)
     ax.contourf(lon_f, lat_f, fine, levels=[0.5, 1.5], colors=[shade.facecolor],
-                hatches=[shade.hatch], alpha=shade.alpha, transform=ccrs.PlateCarree(),
+                hatches=[shade.hatch], transform=ccrs.PlateCarree(),
                 zorder=2)
     return shade.patch(label)
 
@@ -578,13 +609,13 @@ def map_field(
         1 (or True) on ocean. Defaults to the cells where ``data`` has values. When given,
         ocean cells where ``data`` is missing are shaded and named ``missing_label``.
     cmap : matplotlib colormap, optional
-        Defaults to cmocean ``balance`` for fields of both signs and ``amp`` for positive ones.
+        Defaults to cmocean ``balance``, or ``amp`` for fields with no negative values.
     robust : float
         Percentile of ``|data|`` that sets the colour limits (98: the top 2 % saturate).
     vmax : float, optional
         Colour limit in the units of ``data``, overriding ``robust``.
     symmetric : bool, optional
-        Limits symmetric about zero; default: when ``data`` has both signs.
+        Limits symmetric about zero; default: unless ``data`` has no negative values.
     time : "mean" or int
         Average over ``time`` or take one position along it.
     width : "column", "page" or float
@@ -627,14 +658,8 @@ def _map_core(da, *, ocean_mask, cmap, robust, vmax, symmetric, width, projectio
     shown, units = _as_display(da, to_per_year=to_per_year)
     lat, lon, values, periodic = _canonical_2d(shown, "data")
     if ocean_mask is not None:
-        om = require_dataarray(ocean_mask, "ocean_mask")
-        _, _, ocean, _ = _canonical_2d(om.astype(float), "ocean_mask")
-        if ocean.shape != values.shape:
-            raise ValueError(
-                f"ocean_mask: expected the grid of data {values.shape}, found {ocean.shape}. "
-                "Fix: pass the mask of the same grid, e.g. ds['ocean_mask']."
-            )
-        ocean = ocean > 0.5
+        ocean = _mask_like(require_dataarray(ocean_mask, "ocean_mask").astype(float), lat, lon,
+                           "ocean_mask")
     else:
         ocean = np.isfinite(values)
     land = ~ocean
@@ -732,9 +757,10 @@ def map_ekman_pumping(data, *, equatorial_band=None, limits_poleward_of: float =
 
 def _aligned_and(canon: xr.DataArray, other: xr.DataArray) -> xr.DataArray:
     """``canon`` (on the canonical grid) and ``other`` (any order), on the canonical grid."""
-    lay = grid_layout(other, argname="ocean_mask")
-    o = to_canonical(other, lay).transpose(lay.lat_name, lay.lon_name).values > 0.5
-    return canon.copy(data=(canon.values > 0) & o).astype(np.int8)
+    lat_name, lon_name = canon.dims
+    o = _mask_like(other.astype(float), canon[lat_name].values, canon[lon_name].values,
+                   "ocean_mask")
+    return canon.copy(data=((canon.values > 0) & o).astype(np.int8))
 
 
 def _ocean_across_band(da: xr.DataArray, band: float) -> xr.DataArray:
@@ -840,10 +866,10 @@ def _status_info(ds: xr.Dataset):
     return {int(v): m for v, m in zip(values, meanings)}
 
 
-def _reason_style(meaning: str) -> Shade:
+def _reason_style(meaning: str) -> _Shade:
     if meaning in _REASONS:
         return _REASONS[meaning]
-    return Shade(meaning.replace("_", " "), "#ececec", "++")
+    return _Shade(meaning.replace("_", " "), "#ececec", "++")
 
 
 def _basin_names(ds: xr.Dataset) -> list[str]:
@@ -899,7 +925,7 @@ def map_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean", wi
             missing_label="no Sverdrup solution" if not shading else None, to_per_year=False,
             extra_shading=shading)
         if contours:
-            _streamlines(ax, psi, ocean)
+            _streamlines(ax, psi, ocean, robust=robust, vmax=vmax)
         _legend_below(fig, ax, handles, fs)
     return fig, ax
 
@@ -922,8 +948,11 @@ def _not_valid_cells(ds, lay, ocean_da, boundary_zone_km):
     """(mask, Shade) for each reason the Sverdrup relation fails, on the canonical grid."""
     meanings = _status_info(ds)
     status = ds["row_status"].transpose("basin", ...)
-    bid = to_canonical(ds["basin_id"], lay).transpose(lay.lat_name, lay.lon_name).values
-    ocean = to_canonical(ocean_da, lay).transpose(lay.lat_name, lay.lon_name).values > 0.5
+    bid_da = ds["basin_id"]
+    bid = np.full(bid_da.shape, -1)
+    for b in range(len(_basin_names(ds))):
+        bid[_mask_like((bid_da == b).astype(float), lay.lat, lay.lon, "basin_id")] = b
+    ocean = _mask_like(ocean_da.astype(float), lay.lat, lay.lon, "ocean_mask")
     st_lat = status[[d for d in status.dims if d != "basin"][0]]
     ny, nx = bid.shape
     cell_status = np.full((ny, nx), -1, dtype=int)
@@ -958,10 +987,10 @@ def _boundary_zone(ds, lay, bid, cell_status, meanings, km):
     lat_dim = [d for d in wb.dims if d != "basin"][0]
     zone = np.zeros(bid.shape, dtype=bool)
     lon = lay.lon
-    coslat = np.cos(np.deg2rad(lay.lat))
+    # km to degrees of longitude on a sphere of radius 6371 km (111.195 km per degree).
+    width_deg = km / (111.195 * np.maximum(np.cos(np.deg2rad(lay.lat)), 0.05))
     for b in range(wb.sizes["basin"]):
         west = wb.isel(basin=b).interp({lat_dim: lay.lat}, method="nearest").values
-        width_deg = km / (111.195 * np.maximum(coslat, 0.05))
         east_of_coast = (lon[None, :] - west[:, None]) % 360.0
         z = (bid == b) & (east_of_coast <= width_deg[:, None])
         if valid_values:
@@ -970,22 +999,21 @@ def _boundary_zone(ds, lay, bid, cell_status, meanings, km):
     return zone
 
 
-def _streamlines(ax, psi, ocean_da):
+def _streamlines(ax, psi, ocean_da, *, robust, vmax):
+    """Contours of the streamfunction at its colour levels, negative dashed."""
     shown, _ = _as_display(psi)
-    lay = grid_layout(shown, argname="streamfunction")
-    c = to_canonical(shown, lay).transpose(lay.lat_name, lay.lon_name).values.astype(float)
+    lat, lon, c, periodic = _canonical_2d(shown, "streamfunction")
     finite = c[np.isfinite(c)]
     if finite.size < 4 or finite.min() == finite.max():
         return
-    levels, _, _ = _levels(c, robust=98.0, symmetric=True, vmax=None)
+    levels, _, _ = _levels(c, robust=robust, symmetric=True, vmax=vmax)
     levels = levels[levels != 0]
-    ocean = to_canonical(ocean_da, grid_layout(ocean_da, argname="ocean_mask")).transpose(
-        lay.lat_name, lay.lon_name).values > 0.5
-    grid = _MapGrid(lay.lat, lay.lon, lay.periodic, ~ocean)
+    ocean = _mask_like(ocean_da.astype(float), lat, lon, "ocean_mask")
+    grid = _MapGrid(lat, lon, periodic, ~ocean)
     lon_c, vals = grid.cyclic(c)
     levels = levels[(levels > np.nanmin(vals)) & (levels < np.nanmax(vals))]
     if levels.size:
-        ax.contour(lon_c, lay.lat, vals, levels=levels, colors="0.15", linewidths=0.35,
+        ax.contour(lon_c, lat, vals, levels=levels, colors="0.15", linewidths=0.35,
                    negative_linestyles="dashed", transform=ccrs.PlateCarree(), zorder=2.6)
 
 
@@ -996,14 +1024,15 @@ def _observation_rows(observations) -> list[dict]:
     if observations is None:
         return []
     if isinstance(observations, xr.Dataset):
-        dim = next(iter(observations["transport"].dims))
+        # One entry per position along the dimension of ``transport`` (e.g. "current"), whose
+        # coordinate values are the names.
+        dim = observations["transport"].dims[0]
+        columns = [k for k in observations.data_vars if observations[k].dims == (dim,)]
         rows = []
         for i in range(observations.sizes[dim]):
-            r = {k: observations[k].values[i].item() if observations[k].ndim else
-                 observations[k].item() for k in observations.data_vars
-                 if observations[k].dims in ((dim,), ())}
-            r.setdefault("name", str(observations[dim].values[i]))
-            rows.append(r)
+            row = {k: observations[k].values[i].item() for k in columns}
+            row.setdefault("name", str(observations[dim].values[i]))
+            rows.append(row)
     elif hasattr(observations, "to_dict"):
         rows = list(observations.to_dict("records"))
     else:
@@ -1085,6 +1114,13 @@ def plot_transport(data, *, basins=None, observations=None, time="mean", width="
         raise ValueError(
             "observations: expected a 'basin' for every entry when several basins are drawn, "
             "found entries without one. Fix: add 'basin' to each entry or pass basins=[name]."
+        )
+    lowered = {c.lower() for c in chosen}
+    if obs and all(has_basin) and not any(str(r["basin"]).lower() in lowered for r in obs):
+        raise ValueError(
+            f"observations: expected entries for the basins drawn {chosen}, found basins "
+            f"{sorted({str(r['basin']) for r in obs})}. Fix: name the basins as the result "
+            "does, or pass observations=None."
         )
 
     shown, units = _as_display(interior)
@@ -1294,6 +1330,7 @@ def plot_hovmoller(data, *, basin=None, row_status=None, width="column", cmap=No
                           ticks=_ticks(levels, w) / scale)
         cb.set_label(cb_label, fontsize=fs["base"])
         cb.ax.tick_params(labelsize=fs["small"], width=0.5, length=2)
+        cb.ax.xaxis.set_major_formatter(_plain_formatter())
         cb.outline.set_linewidth(0.5)
         if handles:
             fig.legend(handles=list(handles.values()), loc="outside upper center",

@@ -232,6 +232,16 @@ def test_map_field_on_a_regional_grid_in_other_conventions(strict, tmp_path, wor
     save(fig, tmp_path, "regional")
 
 
+def test_ocean_mask_in_another_longitude_convention(strict, tmp_path, result):
+    # The mask on -180..180 with latitude descending, the field on 0..360 ascending.
+    mask = result.ocean_mask.assign_coords(lon=((result.lon + 180) % 360) - 180).sortby("lon")
+    mask = mask.isel(lat=slice(None, None, -1))
+    fig, ax = plotting.map_curl(result.wind_stress_curl, ocean_mask=mask)
+    save(fig, tmp_path, "curl_mask_convention")
+    with pytest.raises(ValueError, match="ocean_mask"):
+        plotting.map_curl(result.wind_stress_curl, ocean_mask=mask.isel(lon=slice(0, -1)))
+
+
 # --- offline coastlines -------------------------------------------------------------------------
 
 
