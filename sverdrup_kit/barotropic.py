@@ -130,6 +130,8 @@ def _metrics_sphere(grid: SphericalGrid, beta: np.ndarray) -> _Metrics:
     dx = grid.dx
     dy = np.broadcast_to(grid.dy[:, None], grid.shape)
     hx = 0.5 * (dx + np.roll(dx, -1, axis=1))
+    if not grid.periodic:
+        hx[:, -1] = dx[:, -1]  # towards the wall beyond a regional grid's eastern edge
     hy = np.empty(grid.shape)
     hy[:-1] = 0.5 * (dy[:-1] + dy[1:])
     hy[-1] = hy[-2]
