@@ -211,13 +211,12 @@ def _levels(values: np.ndarray, *, robust: float, symmetric: bool, vmax=None):
         if vmax <= 0:
             vmax = float(np.abs(finite).max()) or 1.0
     step = _nice_step(vmax, 6)
-    top = step * np.ceil(vmax / step - 1e-9)
+    m = int(np.ceil(vmax / step - 1e-9))
+    top = step * m
     exp = int(np.floor(np.log10(top)))
     exp = 0 if -1 <= exp <= 2 else exp
-    if symmetric:
-        levels = np.arange(-top, top + step / 2, step)
-    else:
-        levels = np.arange(0.0, top + step / 2, step)
+    # Whole multiples of the step, so that zero is exactly a level.
+    levels = step * np.arange(-m if symmetric else 0, m + 1)
     return levels, exp, (finite.min() < levels[0], finite.max() > levels[-1])
 
 
@@ -551,7 +550,7 @@ def _colorbar(fig, ax, mappable, label, fs, *, extend, ticks=None):
 
 def _plain_formatter():
     """Tick labels without trailing zeros ('1.5', not '1.50'), with a true minus sign."""
-    return mticker.FuncFormatter(lambda x, _pos: f"{x:g}".replace("-", "\u2212"))
+    return mticker.FuncFormatter(lambda x, _pos: f"{x:.6g}".replace("-", "\u2212"))
 
 
 def _refined(grid: _MapGrid, mask: np.ndarray, k: int = 4):
