@@ -74,6 +74,7 @@ import scipy.sparse.linalg as spla
 import xarray as xr
 
 from . import constants
+from ._apply import apply_grid_kernel
 from ._coords import check_same_grid, from_canonical, require_dataarray, to_canonical
 from ._units import to_si
 from .boundary_layers import munk_width, stommel_width
@@ -248,12 +249,19 @@ class _Operator:
                 shape=(self.n_islands, n),
             )
             blocks.append(S @ friction @ E)
-        M = sp.vstack(blocks).tocsc()
+        self.M = sp.vstack(blocks).tocsc()
         self.t_assemble = time.perf_counter() - t0
         t0 = time.perf_counter()
-        self.lu = spla.splu(M, permc_spec="COLAMD")
+        self.lu = spla.splu(self.M, permc_spec="COLAMD")
         self.t_factor = time.perf_counter() - t0
-        self.n_unknowns = M.shape[0]
+        self.n_unknowns = self.M.shape[0]
+
+    def __getstate__(self):
+        # SuperLU factors cannot be pickled: a dask worker that receives the operator
+        # factorises the matrix again on first use.
+        state = dict(self.__dict__)
+        state["lu"] = None
+        return state
 
     def _vorticity(self, oc, faces, area, boundary):
         """Matrix giving the relative vorticity at every point: lap(psi) in the ocean, the wall
@@ -324,6 +332,8 @@ class _Operator:
     def solve(self, forcing: np.ndarray, island_forcing: np.ndarray) -> np.ndarray:
         """psi (m3 s-1) at every point of the unpadded grid for curl/rho0 on the ocean points."""
         rhs = np.concatenate([forcing.ravel()[self._ocean_unpadded()], island_forcing])
+        if self.lu is None:
+            self.lu = spla.splu(self.M, permc_spec="COLAMD")
         x = self.lu.solve(rhs)
         full = self.E @ x
         return self._unpad(full)
@@ -749,25 +759,6 @@ def _ocean_mask(c, ocean_mask):
     return m.copy()
 
 
-def _stress_stack(wind_stress, curl, lay, shape):
-    """(taux, tauy) as float64 stacks like the curl's, in Pa, or None."""
-    if wind_stress is None:
-        return None
-    if not isinstance(wind_stress, (tuple, list)) or len(wind_stress) != 2:
-        raise TypeError(
-            f"wind_stress: expected a pair (taux, tauy) of DataArrays, found "
-            f"{type(wind_stress).__name__}. Fix: pass wind_stress=(ds['taux'], ds['tauy'])."
-        )
-    out = []
-    for name, t in zip(("taux", "tauy"), wind_stress):
-        t = require_dataarray(t, f"wind_stress {name}")
-        check_same_grid(curl, t, ("curl", f"wind_stress {name}"))
-        t = to_si(t, "stress", argname=f"wind_stress {name}", default="Pa")
-        t = to_canonical(t, lay).transpose(*curl.dims[:-2], lay.lat_name, lay.lon_name)
-        out.append(np.asarray(t.values, dtype=np.float64).reshape(shape))
-    return out
-
-
 def solve_barotropic(
     curl,
     *,
@@ -791,7 +782,8 @@ def solve_barotropic(
         Wind-stress curl in N m-3 (e.g. from :func:`~sverdrup_kit.operators.wind_stress_curl`),
         missing on land. Any latitude order and longitude convention; longitudes that close
         the circle are periodic. Leading dimensions (e.g. ``time``) are solved one field at a
-        time with one factorisation; they must share the ocean mask. The values are loaded.
+        time with one factorisation; they must share the ocean mask. Dask-backed input gives
+        lazy output (each block of leading dimensions is solved when computed).
     r : float, optional
         Bottom friction on the depth-integrated flow, s-1 (e.g. 1e-6 to 1e-5).
     A_H : float, optional
@@ -807,7 +799,8 @@ def solve_barotropic(
         ``"circulation"``: one constant per island from Kelvin's circulation theorem;
         ``"coast"``: islands join the main coast (psi = 0).
     ocean_mask : xarray.DataArray (lat, lon) of bool, optional
-        Ocean points; default: where the (first) curl field is finite.
+        Ocean points; default: where the first curl field is finite (for dask-backed curl
+        that field is computed at call time: pass ``ocean_mask`` to keep the call lazy).
     wind_stress : (xarray.DataArray, xarray.DataArray), optional
         ``(taux, tauy)`` on the grid of ``curl`` (Pa; dyn cm-2 converted), used only for the
         circulation of the wind round each island, taken along its coast. Recommended when
@@ -853,21 +846,18 @@ def solve_barotropic(
     grid = SphericalGrid.from_data(curl, argname="curl", radius=radius)
     lay = grid.layout
     c = to_canonical(curl, lay).transpose(..., lay.lat_name, lay.lon_name)
-    vals = np.asarray(c.values, dtype=np.float64)
-    lead_shape = vals.shape[:-2]
-    stack = vals.reshape((-1,) + grid.shape)
     if ocean_mask is not None:
         om = to_canonical(require_dataarray(ocean_mask, "ocean_mask"), lay)
-        ocean = _ocean_mask(stack[0], om.transpose(lay.lat_name, lay.lon_name).values)
-    else:
-        ocean = np.isfinite(stack[0])
-    for k in range(1, stack.shape[0]):
-        if not np.array_equal(np.isfinite(stack[k]) | ~ocean, np.ones_like(ocean)):
+        ocean = np.asarray(om.transpose(lay.lat_name, lay.lon_name).values).astype(bool)
+        if ocean.shape != grid.shape:
             raise ValueError(
-                "curl: expected the same ocean points in every field along the leading "
-                f"dimensions {c.dims[:-2]}, found field {k} missing values where the first is "
-                "ocean. Fix: pass ocean_mask, or solve the fields separately."
+                f"ocean_mask: expected a (lat, lon) mask of shape {grid.shape} like curl, found "
+                f"{ocean.shape}. Fix: pass a boolean mask on the grid of curl (True for ocean)."
             )
+    else:
+        # One field decides the ocean (computed now for dask input; pass ocean_mask to avoid).
+        first = c.isel({d: 0 for d in c.dims[:-2]})
+        ocean = np.isfinite(np.asarray(first.values, dtype=np.float64))
     if not ocean.any():
         raise ValueError("curl: expected some ocean (finite values), found none. Fix: check "
                          "the land mask or pass ocean_mask.")
@@ -893,50 +883,106 @@ def solve_barotropic(
         _resolution_warning(_layer_width(r, A_H, beta[rows]), grid.dx[rows].max(axis=1),
                             "western")
     op = _Operator(ocean, met, r=r, A_H=A_H, boundary=boundary, islands=islands)
-    stresses = _stress_stack(wind_stress, curl, lay, stack.shape)
-    psis, isl = [], []
-    for k, field in enumerate(stack):
-        stress = None if stresses is None else (stresses[0][k], stresses[1][k])
-        island_forcing, how = _island_forcing_mixed(op, field, ocean, rho0, stress)
-        psi = op.solve(np.where(ocean, field, 0.0) / rho0, island_forcing)
-        psis.append(psi)
-        isl.append(_island_values(op, psi))
-    t0 = time.perf_counter()
-    beta2d = np.broadcast_to(beta[:, None], grid.shape)
+    stresses = _stresses(wind_stress, curl, lay)
     dims = (lay.lat_name, lay.lon_name)
-    coords = {lay.lat_name: c[lay.lat_name], lay.lon_name: c[lay.lon_name]}
-    pieces = [
-        _assemble_output(op, p, np.where(ocean, fld, np.nan), beta2d, rho0=rho0, depth=depth,
-                         dims=dims, coords=coords)
-        for p, fld in zip(psis, stack)
-    ]
-    if lead_shape:
-        lead_dims = c.dims[:-2]
-        ds = xr.concat(pieces, dim="_stack", data_vars="all")
-        ds = ds.assign_coords(_stack=np.arange(len(pieces)))
-        index = {d: c[d].values if d in c.coords else np.arange(n)
-                 for d, n in zip(lead_dims, lead_shape)}
-        import pandas as pd
-
-        mi = pd.MultiIndex.from_product(list(index.values()), names=list(lead_dims))
-        ds = ds.assign_coords(xr.Coordinates.from_pandas_multiindex(mi, "_stack")).unstack("_stack")
-        ds["land_mass"] = pieces[0]["land_mass"]
-    else:
-        ds = pieces[0]
-    ds["wind_stress_curl"] = c.where(np.broadcast_to(ocean, c.shape)).assign_attrs(
-        long_name="wind stress curl", units="N m-3")
-    ds["coriolis_parameter"] = (lay.lat_name, f, dict(standard_name="coriolis_parameter",
-                                                      units="s-1"))
-    ds["beta"] = (lay.lat_name, beta, dict(long_name="meridional gradient of the Coriolis "
-                                           "parameter", units="m-1 s-1"))
+    beta2d = np.broadcast_to(beta[:, None], grid.shape)
+    psi, U, V, resid = apply_grid_kernel(
+        _solve_kernel, c, *stresses, dims=dims, n_out=4,
+        kwargs=dict(op=op, ocean=ocean, rho0=rho0, beta2d=beta2d),
+    )
+    land = op.island_ids()
+    ds = xr.Dataset(
+        {
+            "streamfunction": (psi / constants.SVERDRUP).assign_attrs(_ATTRS["psi"]),
+            "eastward_transport": U.assign_attrs(_ATTRS["U"]),
+            "northward_transport": V.assign_attrs(_ATTRS["V"]),
+            "eastward_velocity": (U / depth).assign_attrs(_ATTRS["u"]),
+            "northward_velocity": (V / depth).assign_attrs(_ATTRS["v"]),
+            "sverdrup_residual": resid.assign_attrs(_ATTRS["resid"]),
+            "land_mass": (dims, land, _ATTRS["land"]),
+            "wind_stress_curl": c.where(xr.DataArray(ocean, dims=dims)).assign_attrs(
+                long_name="wind stress curl", units="N m-3"),
+            "coriolis_parameter": (lay.lat_name, f, dict(standard_name="coriolis_parameter",
+                                                         units="s-1")),
+            "beta": (lay.lat_name, beta, dict(long_name="meridional gradient of the Coriolis "
+                                              "parameter", units="m-1 s-1")),
+        }
+    )
+    if op.n_islands:
+        # One point of each island carries its constant.
+        first = [np.argwhere(land == k)[0] for k in range(1, op.n_islands + 1)]
+        at = {d: xr.DataArray([p[i] for p in first], dims="island") for i, d in enumerate(dims)}
+        ds["island_streamfunction"] = ds.streamfunction.isel(at).drop_vars(
+            list(dims)).assign_coords(island=np.arange(1, op.n_islands + 1)).assign_attrs(
+            long_name="streamfunction on each island", units="1e6 m3 s-1")
     ds = from_canonical(ds, lay, curl)
+    lazy = ds.streamfunction.chunks is not None
+    island_psi = (np.zeros(0) if not op.n_islands
+                  else "see variable island_streamfunction" if lazy
+                  else ds.island_streamfunction.values)
     ds.attrs.update(_solution_attrs(op, r=r, A_H=A_H, boundary=boundary, islands=islands,
                                     rho0=rho0, depth=depth, rotation=rotation,
-                                    island_psi=isl[0] if len(isl) == 1 else np.array(isl),
-                                    island_how=how))
+                                    island_psi=island_psi,
+                                    island_how=_island_how(op, ocean, stresses, c, lay)))
     ds.attrs["reference_latitude"] = lat0
-    ds.attrs["seconds_output"] = round(time.perf_counter() - t0, 3)
     return ds
+
+
+def _island_how(op, ocean, stresses, c, lay):
+    """How each island's wind circulation is found (looks at one field of the curl)."""
+    if stresses:
+        return ["stress circulation"] * op.n_islands
+    if not op.n_islands:
+        return []
+    if c.chunks is not None:
+        return ["curl over the island where given there, else of the ocean around it"] * (
+            op.n_islands)
+    first = np.asarray(c.transpose(..., lay.lat_name, lay.lon_name).values).reshape(
+        (-1,) + ocean.shape)[0]
+    return _island_forcing_mixed(op, first, ocean, 1.0)[1]
+
+
+def _solve_kernel(curl, *stress, op, ocean, rho0, beta2d):
+    """psi (m3 s-1), U, V (m2 s-1) and the Sverdrup residual (m s-2) for each field."""
+    c = np.asarray(curl, dtype=np.float64)
+    shape = c.shape
+    flat = c.reshape((-1,) + shape[-2:])
+    st = [np.asarray(t, dtype=np.float64).reshape(flat.shape) for t in stress]
+    out = np.full((4,) + flat.shape, np.nan)
+    for k, field in enumerate(flat):
+        if not np.all(np.isfinite(field[ocean])):
+            raise ValueError(
+                "curl: expected the same ocean points in every field, found a field missing "
+                f"values at {int(np.sum(~np.isfinite(field[ocean])))} ocean points of the "
+                "first. Fix: pass ocean_mask, or solve the fields separately."
+            )
+        pair = (st[0][k], st[1][k]) if st else None
+        island_forcing, _ = _island_forcing_mixed(op, field, ocean, rho0, pair)
+        psi = op.solve(np.where(ocean, field, 0.0) / rho0, island_forcing)
+        dpx, dpy = op.derivatives(psi)
+        out[0, k] = psi
+        out[1, k] = np.where(ocean, -dpy, np.nan)
+        out[2, k] = np.where(ocean, dpx, np.nan)
+        out[3, k] = beta2d * out[2, k] - np.where(ocean, field, np.nan) / rho0
+    return tuple(o.reshape(shape) for o in out)
+
+
+def _stresses(wind_stress, curl, lay):
+    """(taux, tauy) on the canonical grid in Pa, as DataArrays like the curl, or ()."""
+    if wind_stress is None:
+        return ()
+    if not isinstance(wind_stress, (tuple, list)) or len(wind_stress) != 2:
+        raise TypeError(
+            f"wind_stress: expected a pair (taux, tauy) of DataArrays, found "
+            f"{type(wind_stress).__name__}. Fix: pass wind_stress=(ds['taux'], ds['tauy'])."
+        )
+    out = []
+    for name, t in zip(("taux", "tauy"), wind_stress):
+        t = require_dataarray(t, f"wind_stress {name}")
+        check_same_grid(curl, t, ("curl", f"wind_stress {name}"))
+        t = to_si(t, "stress", argname=f"wind_stress {name}", default="Pa")
+        out.append(to_canonical(t, lay).transpose(*curl.dims))
+    return tuple(out)
 
 
 def _row_positions(solution: xr.Dataset):
