@@ -886,7 +886,8 @@ def map_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean", wi
         From :func:`~sverdrup_kit.sverdrup.sverdrup`: ``streamfunction`` (1e6 m3 s-1) and, when
         present, ``row_status`` (basin, lat) with CF flags, ``basin_id`` (lat, lon),
         ``western_boundary_lon`` (basin, lat) and ``wind_stress_curl`` (its finite cells are the
-        ocean). A bare streamfunction DataArray is mapped without the shading.
+        ocean). For a bare streamfunction DataArray only the equatorial band between cells
+        with values is shaded (as "no Sverdrup solution").
     boundary_zone_km : float
         Width east of each western coast shaded as the western boundary-current zone, km
         (a few Munk or Stommel widths: 300 km is common practice on coarse grids). 0 turns it
@@ -910,7 +911,9 @@ def map_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean", wi
     lay = grid_layout(psi, argname="streamfunction")
     ocean = _ocean_of(ds)
     if ocean is None:
-        ocean = psi.notnull().astype(np.int8)
+        # A bare DataArray does not say where the ocean is: take its cells with values and the
+        # equatorial band between them.
+        ocean = _ocean_across_band(psi, _equatorial_band(psi, None))
     shading = []
     if "row_status" in ds and "basin_id" in ds:
         shading = _not_valid_cells(ds, lay, ocean, boundary_zone_km)

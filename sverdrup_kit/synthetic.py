@@ -20,7 +20,8 @@ Cendra                 continent  190E to 260E (70 degrees) from 46S to 70N; sou
                                   coast moves 15 degrees east and its east coast 25 degrees west,
                                   linearly, by its tip at 46S
 Halcyon Ocean          basin      the wide basin east of Aurelia and west of Cendra: 60E to 190E,
-                                  130 degrees wide north of 10N
+                                  130 degrees wide from 10S to 70N (124 beside the peninsula,
+                                  150 across the strait into the gulf)
 Lissom Ocean           basin      the narrow basin east of Cendra and west of Aurelia: 260E to
                                   320E, 60 degrees wide north of 10S
 Quillon Peninsula      peninsula  60E to 66E, 20N to 34N, joined to Aurelia at 32N-34N
@@ -43,10 +44,11 @@ and the noise-free monthly winds are zonally uniform, with :math:`\varphi' = \va
 .. math:: u_0 = \sum_{k=0}^{4} a_k \cos(2k\varphi') + \sum_{j=0}^{2} b_j \sin((2j+1)\varphi'),
    \qquad v_0 = -V \sin(6\varphi')
 
-with ``a = (-0.1, -2.6, -5.8, 0.7, 3.1)``, ``b = (-0.4, -0.4, 0.8)`` and ``V = 1.2`` m s-1:
-easterly trades (about -6.5 m s-1 near 15 degrees), westerlies peaking near 45N (7.7 m s-1)
-and 47S (10 m s-1), polar easterlies (about -2 m s-1 near 72-75 degrees); ``v0`` is equatorward
-in the trades and poleward under the westerlies.
+with ``a = (-0.1, -2.6, -5.8, 0.7, 3.1)``, ``b = (-0.4, -0.4, 0.8)`` and ``V = 1.2`` m s-1.
+In the annual mean: easterly trades peaking near 16N (-6.3 m s-1) and 16S (-7.0 m s-1),
+westerlies peaking near 47N (7.4 m s-1) and 47S (9.8 m s-1), polar easterlies of about
+-2 m s-1 near 74N and 78S; ``v0`` is equatorward in the trades and poleward under the
+westerlies.
 Because the twelve shifts come in pairs of opposite sign and
 :math:`\frac{1}{12}\sum_m \cos(n\delta_m) = J_0(nD)` to within 1e-15 for these ``n``, the
 annual means are the same series with every coefficient multiplied by :math:`J_0(nD)` (``n`` the

@@ -311,11 +311,29 @@ def test_plot_transport_accepts_the_observation_table(strict, tmp_path, result):
     save(fig, tmp_path, "transport_one")
 
 
+def test_plot_transport_accepts_a_dataframe(strict, tmp_path, result):
+    pd = pytest.importorskip("pandas")
+    fig, axes = plotting.plot_transport(result, observations=pd.DataFrame(OBS))
+    names = {t.get_text() for a in axes for t in a.texts}
+    assert names == {"Brenn Current", "Quillon Jet", "Austral Drift"}
+    save(fig, tmp_path, "transport_df")
+
+
+def test_map_streamfunction_from_a_bare_dataarray(strict, tmp_path, result):
+    fig, ax = plotting.map_streamfunction(result.streamfunction, width="page")
+    assert colorbar_label(fig) == "Sverdrup streamfunction (Sv)"
+    assert [t.get_text() for t in fig.legends[0].get_texts()] == ["no Sverdrup solution"]
+    save(fig, tmp_path, "psi_da")
+
+
 def test_plot_transport_bad_observations(result):
     with pytest.raises(ValueError, match="observations"):
         plotting.plot_transport(result, observations=[{"lat": 20, "transport": 3}])
     with pytest.raises(ValueError, match="basins"):
         plotting.plot_transport(result, basins=["Atlantis"])
+    with pytest.raises(ValueError, match="observations"):
+        plotting.plot_transport(result, observations=[dict(OBS[0], basin="Atlantis")])
+    plt.close("all")
 
 
 def test_hovmoller_zonal_mean_and_basin(strict, tmp_path, world, result):
