@@ -10,7 +10,16 @@ Results are climatological diagnostics for research, not forecasts for navigatio
 marine operations.
 """
 
+from .barotropic import boundary_current, solve_barotropic, solve_basin
 from .basins import basin_mask
+from .boundary_layers import (
+    munk_boundary_layer,
+    munk_edge_distance,
+    munk_peak_distance,
+    munk_width,
+    stommel_basin,
+    stommel_width,
+)
 from .constants import AIR_DENSITY, EARTH_RADIUS, OMEGA, RHO0, SVERDRUP
 from .ekman import ekman
 from .grid import SphericalGrid, beta_parameter, coriolis_parameter
