@@ -128,8 +128,13 @@ def _run_diagnose(args) -> int:
         kw["air_density"] = args.air_density
     if args.rho0 is not None:
         kw["rho0"] = args.rho0
+    basins = args.basins
+    if basins is None and args.synthetic:
+        from .synthetic import world_basins
+
+        basins = world_basins(winds)
     say("computing stress, curl, Ekman and Sverdrup transports")
-    res = diagnose(winds, drag=args.drag, basins=args.basins, **kw)
+    res = diagnose(winds, drag=args.drag, basins=basins, **kw)
     from ._progress import progress
 
     with progress(enabled=not (args.no_progress or args.quiet)):

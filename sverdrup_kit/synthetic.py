@@ -107,6 +107,8 @@ from . import constants
 __all__ = [
     "make_world",
     "load_world",
+    "world_basins",
+    "BASIN_LANDMARKS",
     "write_world",
     "analytic_winds",
     "analytic_stress_curl",
@@ -491,6 +493,48 @@ def load_world(*, chunks=None) -> xr.Dataset:
         with xr.open_dataset(path, engine="netcdf4") as ds:
             ds = ds.load()
     return ds if chunks is None else ds.chunk(chunks)
+
+
+#: A point (lat, lon) inside each named basin of the world: the wide ocean, the narrow one and
+#: the open rows south of Aurelia's tip, where the two meet.
+BASIN_LANDMARKS = {
+    "halcyon": (29.0, 121.0),
+    "lissom": (29.0, 291.0),
+    "austral": (-41.0, 1.0),
+}
+
+
+def world_basins(world: xr.Dataset | None = None) -> xr.DataArray:
+    """Basin numbers of the synthetic world with their invented names.
+
+    The connected ocean regions that :func:`sverdrup_kit.basin_mask` finds, each named after
+    the landmark of :data:`BASIN_LANDMARKS` it contains; pass the result as ``basins=`` to
+    :func:`sverdrup_kit.sverdrup` or :func:`sverdrup_kit.diagnose`.
+    """
+    from .basins import basin_mask
+
+    world = load_world() if world is None else world
+    ids = basin_mask(world["ocean_mask"].astype(bool))
+    numbers, names = [], []
+    for name, (lat, lon) in BASIN_LANDMARKS.items():
+        number = int(ids.sel(lat=lat, lon=lon, method="nearest"))
+        if number < 0 or number in numbers:
+            raise RuntimeError(
+                f"world_basins: the landmark of '{name}' at ({lat}, {lon}) does not fall in a "
+                "basin of its own; the world's geography and BASIN_LANDMARKS disagree."
+            )
+        numbers.append(number)
+        names.append(name)
+    renumber = np.full(int(ids.max()) + 2, -1, dtype=np.int32)
+    for new, old in enumerate(numbers):
+        renumber[old] = new
+    out = ids.copy(data=renumber[ids.values])
+    return out.assign_attrs(
+        long_name="basin number of the synthetic world",
+        flag_values=np.arange(len(names), dtype=np.int32),
+        flag_meanings=" ".join(names),
+        comment="-1 on land and in ocean outside every named basin",
+    )
 
 
 def main(argv=None) -> int:
