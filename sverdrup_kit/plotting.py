@@ -1131,7 +1131,7 @@ def plot_transport(data, *, basins=None, observations=None, time="mean", width="
     fs = _fonts(w)
     n = len(chosen)
     with mpl.rc_context(_rc(fs)):
-        fig, axes = plt.subplots(n, 1, figsize=(w, 0.35 + 1.55 * n * (w / 3.5) ** 0.5),
+        fig, axes = plt.subplots(n, 1, figsize=(w, 0.35 + n * (1.5 + 0.1 * (w - 3.5))),
                                  sharex=True, squeeze=False, layout="constrained")
         axes = axes[:, 0]
         handles = {}
@@ -1145,7 +1145,9 @@ def plot_transport(data, *, basins=None, observations=None, time="mean", width="
         axes[-1].xaxis.set_major_locator(mticker.MultipleLocator(30 if hi - lo > 60 else 15))
         axes[-1].set_xlabel("latitude", fontsize=fs["base"])
         axes[-1].xaxis.set_major_formatter(_lat_formatter())
-        fig.legend(handles=list(handles.values()), loc="outside lower center",
+        # Curves and observations first, then the shaded regions.
+        order = sorted(handles, key=lambda k: (k not in ("interior", "bc", "obs"), 0))
+        fig.legend(handles=[handles[k] for k in order], loc="outside lower center",
                    ncols=min(2 if w < 5 else 3, len(handles)), frameon=False,
                    fontsize=fs["small"], handlelength=1.8, columnspacing=1.0)
         if title:
