@@ -275,20 +275,15 @@ def _scan_runs(v, dx, cells, run_starts, psi, totals, start, stop):
         t = p // n_runs
         r = p - t * n_runs
         stop_cell = run_starts[r + 1] if r + 1 < n_runs else m
+        # -(inclusive sum - half the cell), as in _scan.westward_scan. A NaN cell makes the
+        # running sum NaN, so it and every cell west of it come out NaN without a branch.
         total = 0.0
-        bad = False
         for k in range(run_starts[r], stop_cell):
             c = cells[k]
             f = v[t, c] * dx[c]
-            if np.isnan(f):
-                bad = True
-            if bad:
-                psi[t, c] = np.nan
-            else:
-                # -(inclusive sum - half the cell), as in _scan.westward_scan
-                total += f
-                psi[t, c] = -(total - 0.5 * f)
-        totals[t, r] = np.nan if bad else total
+            total += f
+            psi[t, c] = -(total - 0.5 * f)
+        totals[t, r] = total
 
 
 @numba.njit(cache=True, error_model="numpy", parallel=True)
@@ -334,16 +329,12 @@ def _sverdrup_rows(
         for r in range(row_runs[j], row_runs[j + 1]):
             stop_cell = run_starts[r + 1] if r + 1 < n_runs else m
             total = 0.0
-            bad = False
             for q in range(run_starts[r], stop_cell):
                 i = cells[q] - base
                 f = vrow[i] * dx[j, i]
-                if np.isnan(f):
-                    bad = True
-                if not bad:
-                    total += f
-                    prow[i] = -(total - 0.5 * f)
-            totals[t, r] = np.nan if bad else total
+                total += f
+                prow[i] = -(total - 0.5 * f)
+            totals[t, r] = total
     return n_iso
 
 
