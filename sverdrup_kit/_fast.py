@@ -365,6 +365,77 @@ def _sverdrup_serial(
     )  # fmt: skip
 
 
+@_jit
+def _fill_field(field, target, periodic, todo, new):
+    """Fill one (ny, nx) field in place, as _scan.fill_from_neighbours does, pass by pass.
+
+    Only the cells still missing are visited (``todo``, scratch of ny * nx indices); each pass
+    computes every new value from the previous pass's field before storing any (``new``).
+    """
+    ny, nx = field.shape
+    m = 0
+    for j in range(ny):
+        for i in range(nx):
+            if target[j, i] and np.isnan(field[j, i]):
+                todo[m] = j * nx + i
+                m += 1
+    while m > 0:
+        for k in range(m):
+            c = todo[k]
+            j = c // nx
+            i = c - j * nx
+            # West, east, south, north: the order of the NumPy kernel's sum.
+            total = 0.0
+            count = 0.0
+            if i >= 1 or periodic:
+                x = field[j, i - 1 if i >= 1 else nx - 1]
+                if np.isfinite(x):
+                    total += x
+                    count += 1.0
+            if i + 1 < nx or periodic:
+                x = field[j, i + 1 if i + 1 < nx else 0]
+                if np.isfinite(x):
+                    total += x
+                    count += 1.0
+            if j >= 1:
+                x = field[j - 1, i]
+                if np.isfinite(x):
+                    total += x
+                    count += 1.0
+            if j + 1 < ny:
+                x = field[j + 1, i]
+                if np.isfinite(x):
+                    total += x
+                    count += 1.0
+            new[k] = total / count if count > 0.0 else np.nan
+        left = 0
+        for k in range(m):
+            if np.isnan(new[k]):
+                todo[left] = todo[k]
+                left += 1
+            else:
+                c = todo[k]
+                field[c // nx, c - (c // nx) * nx] = new[k]
+        if left == m:
+            break
+        m = left
+
+
+@numba.njit(cache=True, error_model="numpy", parallel=True)
+def _fill_parallel(out, target, periodic):
+    n = out.shape[1] * out.shape[2]
+    for t in numba.prange(out.shape[0]):
+        _fill_field(out[t], target, periodic, np.empty(n, np.int64), np.empty(n))
+
+
+@_jit
+def _fill_serial(out, target, periodic):
+    n = out.shape[1] * out.shape[2]
+    todo, new = np.empty(n, np.int64), np.empty(n)
+    for t in range(out.shape[0]):
+        _fill_field(out[t], target, periodic, todo, new)
+
+
 # --------------------------------------------------------------------------------------------
 # Entry points on plain arrays (same contracts as the NumPy kernels)
 # --------------------------------------------------------------------------------------------
@@ -512,3 +583,15 @@ def sverdrup_fused(
         psi.reshape(shape),
         totals.reshape(lead + (run_starts.size,)),
     )
+
+
+def fill_from_neighbours(a, *, target, periodic):
+    """Compiled twin of :func:`sverdrup_kit._scan.fill_from_neighbours` (same arguments and
+    results): missing cells of ``target`` take the mean of their valued face neighbours, pass
+    after pass, visiting only the cells still missing."""
+    a = np.asarray(a, dtype=np.float64)
+    target = np.ascontiguousarray(np.asarray(target, dtype=bool))
+    filled = np.where(target, a, np.nan)  # a new array, filled in place below
+    kernel = _fill_parallel if _in_main_thread() else _fill_serial
+    kernel(filled.reshape((-1,) + filled.shape[-2:]), target, bool(periodic))
+    return filled
