@@ -14,8 +14,13 @@ stamp="$VENV/.sverdrup_kit_installed"
 want="$(sha256sum pyproject.toml | cut -d' ' -f1)"
 if [ ! -f "$stamp" ] || [ "$(cat "$stamp")" != "$want" ]; then
     echo "setup: installing sverdrup-kit and its test dependencies (first run takes about a minute)"
-    "$VENV/bin/python" -m pip install --quiet --disable-pip-version-check --upgrade pip
-    "$VENV/bin/python" -m pip install --quiet --disable-pip-version-check -e ".[test]"
+    log="$VENV/install.log"
+    if ! { "$VENV/bin/python" -m pip install --disable-pip-version-check --upgrade pip &&
+           "$VENV/bin/python" -m pip install --disable-pip-version-check -e ".[test]"; } >"$log" 2>&1; then
+        tail -n 40 "$log"
+        echo "setup: installing failed; the full log is in $log" >&2
+        exit 1
+    fi
     echo "$want" > "$stamp"
 fi
 export SVERDRUP_KIT_DATA="${SVERDRUP_KIT_DATA:-$ROOT/.cache/sverdrup_kit}"
