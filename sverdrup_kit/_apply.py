@@ -34,10 +34,19 @@ def apply_grid_kernel(kernel, *arrays, dims, n_out=1, kwargs=None, like=None):
         dask="parallelized",
         output_dtypes=[np.float64] * n_out,
         kwargs=kwargs or {},
-        keep_attrs=False,
+        # keep_attrs=False would also strip the coordinates' units and standard names; keep
+        # them, and drop only the data variables' attributes below.
+        keep_attrs=True,
     )
     like = arrays[0] if like is None else like
     order = [d for d in like.dims]
     outs = out if n_out > 1 else (out,)
-    outs = tuple(o.transpose(*[d for d in order if d in o.dims], ...) for o in outs)
+    outs = tuple(_bare(o.transpose(*[d for d in order if d in o.dims], ...)) for o in outs)
     return outs if n_out > 1 else outs[0]
+
+
+def _bare(da: xr.DataArray) -> xr.DataArray:
+    """A shallow copy of ``da`` without its own attributes (coordinates keep theirs)."""
+    out = da.copy(deep=False)
+    out.attrs = {}
+    return out

@@ -335,15 +335,34 @@ def _mask_on_grid(da, ref, layout, argname):
             f"{argname}: expected dimensions ({lat_name}, {lon_name}) like taux, found "
             f"{da.dims}. Fix: select one field, e.g. {argname}.isel(time=0), or rename."
         )
-    for name in (lat_name, lon_name):
+    for name, period in ((lat_name, None), (lon_name, 360.0)):
         a, b = np.asarray(da[name].values, float), np.asarray(ref[name].values, float)
-        if a.shape != b.shape or not np.allclose(a, b, atol=1e-6):
+        take = _matching_positions(a, b, period)
+        if take is None:
             raise GridError(
-                f"{argname}: expected the same '{name}' coordinate as taux ({b.size} values "
-                f"from {b[0]:g}), found {a.size} values from {a[0]:g}. Fix: "
-                f"{argname}.interp_like(taux, method='nearest')."
+                f"{argname}: expected the same '{name}' points as taux ({b.size} values "
+                f"{b.min():g}..{b.max():g}), found {a.size} values {a.min():g}..{a.max():g}"
+                + (" (compared modulo 360)" if period else "")
+                + f". Fix: build the mask on taux's grid, e.g. {argname}.reindex_like(taux, "
+                "method='nearest') when the grids are the same but for a few points."
             )
+        # The same points in another order or longitude convention: put them in taux's.
+        da = da.isel({name: take}).assign_coords({name: ref[name].values})
     return np.asarray(to_canonical(da, layout).transpose(lat_name, lon_name).values)
+
+
+def _matching_positions(a: np.ndarray, b: np.ndarray, period: float | None):
+    """Positions in ``a`` of each value of ``b`` (modulo ``period``), or None if they differ."""
+    if a.shape != b.shape:
+        return None
+    ka = np.mod(a, period) if period else a
+    kb = np.mod(b, period) if period else b
+    order = np.argsort(ka)
+    pos = np.searchsorted(ka[order], kb).clip(0, a.size - 1)
+    take = order[pos]
+    if not np.allclose(ka[take], kb, atol=1e-6):
+        return None
+    return take
 
 
 def _as_bool(vals, argname):

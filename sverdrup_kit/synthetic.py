@@ -516,7 +516,10 @@ def world_basins(world: xr.Dataset | None = None) -> xr.DataArray:
     world = load_world() if world is None else world
     ids = basin_mask(world["ocean_mask"].astype(bool))
     numbers, names = [], []
+    lon0 = float(ids.lon.min())
     for name, (lat, lon) in BASIN_LANDMARKS.items():
+        # Put the landmark in the world's longitude convention (0..360, -180..180, ...).
+        lon = lon0 + (lon - lon0) % 360.0
         number = int(ids.sel(lat=lat, lon=lon, method="nearest"))
         if number < 0 or number in numbers:
             raise RuntimeError(

@@ -238,3 +238,17 @@ def test_curvilinear_grids_are_refused_with_the_reason():
     a = xr.DataArray(np.ones((5, 6)), dims=("y", "x"), coords={"nav_lat": lat2d, "nav_lon": lon2d})
     with pytest.raises(GridError, match="Curvilinear"):
         wind_stress_curl(a, a)
+
+
+def test_coordinates_keep_their_cf_attributes():
+    # CF: latitude and longitude carry units (CF conventions, section 4.1-4.2); a result
+    # written to NetCDF must keep them.
+    g = SphericalGrid.regular(10.0)
+    tx, ty, _ = analytic(g.lat, g.lon)
+    a = as_da(tx, g.lat, g.lon)
+    a.lat.attrs.update(units="degrees_north", standard_name="latitude")
+    a.lon.attrs.update(units="degrees_east", standard_name="longitude")
+    c = wind_stress_curl(a, as_da(ty, g.lat, g.lon).assign_coords(lat=a.lat, lon=a.lon))
+    assert c.lat.attrs["units"] == "degrees_north"
+    assert c.lon.attrs["standard_name"] == "longitude"
+    assert c.attrs["units"] == "N m-3"

@@ -476,6 +476,14 @@ def test_masks_polygons_and_basin_numbers_agree_with_automatic_basins(world):
     ds2 = sverdrup(_to_convention(tx, "-180..180"), _to_convention(ty, "-180..180"),
                    basins=poly)
     np.testing.assert_allclose(ds2.interior_transport, ds.interior_transport, equal_nan=True)
+    # Basin numbers on 0..360 applied to stress on -180..180 (and descending latitude): the
+    # mask is matched point by point modulo 360, not rejected or interpolated.
+    moved = [_to_convention(f, "-180..180").isel(lat=slice(None, None, -1)) for f in (tx, ty)]
+    ds3 = sverdrup(*moved, basins=auto.basin_id)
+    np.testing.assert_allclose(ds3.interior_transport.sortby("lat"), auto.interior_transport,
+                               equal_nan=True)
+    with pytest.raises(ValueError, match="reindex_like"):
+        sverdrup(tx, ty, basins=auto.basin_id.assign_coords(lon=auto.lon + 0.5))
 
 
 def test_bad_input_raises_errors_that_name_the_argument(world):

@@ -358,3 +358,17 @@ def test_world_basins_are_named_and_carry_the_documented_oceans():
     # takes the basin of the water around it.
     land_in_basin = ids.values[world.ocean_mask.values == 0] >= 0
     assert int(land_in_basin.sum()) == 2
+
+
+def test_world_basins_in_another_longitude_convention():
+    # The same geography on -180..180 must give the same named basins (gsw's habit of
+    # shifting longitudes by 360 and expecting the same answers).
+    from sverdrup_kit.synthetic import world_basins
+
+    world = synthetic.load_world()
+    ref = world_basins(world)
+    moved = world.assign_coords(lon=(world.lon + 180) % 360 - 180).sortby("lon")
+    ids = world_basins(moved)
+    assert ids.attrs["flag_meanings"] == ref.attrs["flag_meanings"]
+    back = ids.assign_coords(lon=ids.lon % 360).sortby("lon")
+    np.testing.assert_array_equal(back.values, ref.values)
