@@ -125,17 +125,19 @@ def main(argv=None):
     # against the bandwidth bound (the entry points above also pay for fresh output pages).
     cos = np.cos(phi)
     rcos = fields.RADIUS * cos
-    wlon = _fast.derivative_weights(lam, 2 * np.pi)
-    wlat = _fast.derivative_weights(phi)
+    wlon, plon = _fast.weight_tables(lam, 2 * np.pi)
+    wlat, plat = _fast.weight_tables(phi)
     out = [np.empty_like(taux) for _ in range(3)]
     totals = np.empty((nt, starts.size))
 
     def curl_loop():
-        _fast._curl_parallel(taux, tauy, cos, rcos, wlon, wlat, True, out[0], _fast._blocks())
+        _fast._curl_parallel(
+            taux, tauy, cos, rcos, wlon, wlat, plon, plat, True, out[0], _fast._blocks()
+        )
 
     def fused_loop():
         _fast._sverdrup_parallel(
-            taux, tauy, cos, rcos, wlon, wlat, True, rb, dx, cells, starts, row_runs,
+            taux, tauy, cos, rcos, wlon, wlat, plon, plat, True, rb, dx, cells, starts, row_runs,
             out[0], out[1], out[2], totals, _fast._blocks(),
         )  # fmt: skip
 

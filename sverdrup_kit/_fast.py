@@ -88,21 +88,31 @@ def _derivative_weights(x: np.ndarray, period: float | None) -> np.ndarray:
 
 
 @lru_cache(maxsize=16)
-def _weights_cached(key: bytes, n: int, period: float | None) -> np.ndarray:
+def _weights_cached(key: bytes, n: int, period: float | None):
     w = _derivative_weights(np.frombuffer(key, dtype=np.float64, count=n), period)
+    # Point-major copy for the coastal cells, which need all eleven weights of one point:
+    # one or two cache lines instead of eleven.
+    wt = np.ascontiguousarray(w.T)
     w.flags.writeable = False
-    return w
+    wt.flags.writeable = False
+    return w, wt
 
 
-def derivative_weights(x: np.ndarray, period: float | None = None) -> np.ndarray:
+def weight_tables(x: np.ndarray, period: float | None = None):
     """Finite-difference weights along a (possibly non-uniform, possibly periodic) axis.
 
-    Returns an (11, n) read-only table, cached per axis: the three centred weights, the three
+    Returns two read-only tables, cached per axis: ``w`` (11, n) and the same numbers point
+    by point, (n, 11). The eleven weights of a point are the three centred weights, the three
     forward and three backward one-sided second-order weights, and the spacings to the next
     and previous points (for the two-point differences).
     """
     x = np.ascontiguousarray(x, dtype=np.float64)
     return _weights_cached(x.tobytes(), x.size, None if period is None else float(period))
+
+
+def derivative_weights(x: np.ndarray, period: float | None = None) -> np.ndarray:
+    """The (11, n) table of :func:`weight_tables`."""
+    return weight_tables(x, period)[0]
 
 
 # --------------------------------------------------------------------------------------------
@@ -141,53 +151,53 @@ def _one_point(ok_m, ok_mm, ok_p, ok_pp, f, fm1, fm2, fp1, fp2, w0, w1, w2, w3, 
 
 
 @_jit
-def _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, out, todo):
+def _curl_row(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, j, out, todo, flags):
     """Curl along row j of field t into out[t, j]; returns the number of isolated derivatives.
 
-    ``todo`` is scratch space for nx + 2 cell indices.
+    ``todo`` and ``flags`` are scratch space from :func:`_scratch`.
 
     Most ocean cells have ocean on all four sides and take centred differences in both
     directions. A first, branch-free (vectorised) sweep computes exactly that everywhere,
     with NaN propagating from any land neighbour (the ``* 0.0`` terms bring in the other
-    component of each neighbour, since a cell is land when either is missing). A second sweep
-    redoes, case by case, the ocean cells left NaN: coasts, grid edges and the wrap.
+    component of each neighbour, since a cell is land when either is missing), and flags the
+    ocean cells it left NaN. Those, the two ends of the row and the rows the sweep skips are
+    then done case by case: coasts, grid edges and the wrap.
     """
     nt, ny, nx = tx.shape
     row = out[t, j]
-    first, last = 1, nx - 1
+    xr, yr = tx[t, j], ty[t, j]
+    m = 0
     if j == 0 or j == ny - 1 or abs(cos[j]) < 1e-12 or nx < 3:
-        first, last = 0, 0
+        for i in range(nx):
+            todo[i] = i
+        m = nx
     else:
-        txs, txc, txn = tx[t, j - 1], tx[t, j], tx[t, j + 1]
-        tys, tyc, tyn = ty[t, j - 1], ty[t, j], ty[t, j + 1]
+        txs, txn = tx[t, j - 1], tx[t, j + 1]
+        tys, tyn = ty[t, j - 1], ty[t, j + 1]
         cs, cc, cn, r = cos[j - 1], cos[j], cos[j + 1], rcos[j]
         a, b, c = wlat[0, j], wlat[1, j], wlat[2, j]
-        for i in range(first, last):
-            dty = wlon[0, i] * tyc[i - 1] + wlon[1, i] * tyc[i] + wlon[2, i] * tyc[i + 1]
-            dtx = a * (txs[i] * cs) + b * (txc[i] * cc) + c * (txn[i] * cn)
-            guard = (txc[i - 1] + txc[i + 1] + tys[i] + tyn[i]) * 0.0
-            row[i] = (dty - dtx) / r + guard
+        for i in range(1, nx - 1):
+            dty = wlon[0, i] * yr[i - 1] + wlon[1, i] * yr[i] + wlon[2, i] * yr[i + 1]
+            dtx = a * (txs[i] * cs) + b * (xr[i] * cc) + c * (txn[i] * cn)
+            guard = (xr[i - 1] + xr[i + 1] + tys[i] + tyn[i]) * 0.0
+            value = (dty - dtx) / r + guard
+            row[i] = value
+            flags[i] = np.isnan(value) & np.isfinite(xr[i] + yr[i])
+        flags[0] = 1
+        flags[nx - 1] = 1
+        # Coastal cells are a few per cent and come in clusters: test eight flags at a time.
+        words = flags.view(np.uint64)
+        for w in range(words.size):
+            if words[w] != 0:
+                for i in range(8 * w, 8 * w + 8):
+                    if flags[i]:
+                        todo[m] = i
+                        m += 1
     pole = abs(cos[j]) < 1e-12
     jm1, jm2 = max(j - 1, 0), max(j - 2, 0)
     jp1, jp2 = min(j + 1, ny - 1), min(j + 2, ny - 1)
     x_m, x_p, x_mm, x_pp = tx[t, jm1], tx[t, jp1], tx[t, jm2], tx[t, jp2]
     y_m, y_p, y_mm, y_pp = ty[t, jm1], ty[t, jp1], ty[t, jm2], ty[t, jp2]
-    xr, yr = tx[t, j], ty[t, j]
-    # Cells left to do: every cell of a row the first sweep skipped; otherwise the two ends
-    # and the ocean cells it left NaN (land is NaN already). Listed without branches, since
-    # land and ocean alternate along a row.
-    m = 0
-    if first == last:
-        for i in range(nx):
-            todo[i] = i
-        m = nx
-    else:
-        todo[0] = 0
-        todo[1] = nx - 1
-        m = 2
-        for i in range(first, last):
-            todo[m] = i
-            m += np.isnan(row[i]) & np.isfinite(xr[i]) & np.isfinite(yr[i])
     n_iso = 0
     for k in range(m):
         i = todo[k]
@@ -213,8 +223,8 @@ def _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, out, todo):
             okpp = okp & (i + 2 < nx) & _ocean(xr[ip2], yr[ip2])
         dty = _one_point(
             okm, okmm, okp, okpp, yr[i], yr[im1], yr[im2], yr[ip1], yr[ip2],
-            wlon[0, i], wlon[1, i], wlon[2, i], wlon[3, i], wlon[4, i], wlon[5, i],
-            wlon[6, i], wlon[7, i], wlon[8, i], wlon[9, i], wlon[10, i],
+            plon[i, 0], plon[i, 1], plon[i, 2], plon[i, 3], plon[i, 4], plon[i, 5],
+            plon[i, 6], plon[i, 7], plon[i, 8], plon[i, 9], plon[i, 10],
         )  # fmt: skip
         n_iso += ~okm & ~okp
         # d(tau_x cos(phi))/d(phi) down the column
@@ -225,8 +235,8 @@ def _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, out, todo):
         dtx = _one_point(
             okm, okmm, okp, okpp, xr[i] * cos[j],
             x_m[i] * cos[jm1], x_mm[i] * cos[jm2], x_p[i] * cos[jp1], x_pp[i] * cos[jp2],
-            wlat[0, j], wlat[1, j], wlat[2, j], wlat[3, j], wlat[4, j], wlat[5, j],
-            wlat[6, j], wlat[7, j], wlat[8, j], wlat[9, j], wlat[10, j],
+            plat[j, 0], plat[j, 1], plat[j, 2], plat[j, 3], plat[j, 4], plat[j, 5],
+            plat[j, 6], plat[j, 7], plat[j, 8], plat[j, 9], plat[j, 10],
         )  # fmt: skip
         n_iso += ~okm & ~okp
         row[i] = np.nan if pole else (dty - dtx) / rcos[j]
@@ -234,19 +244,28 @@ def _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, out, todo):
 
 
 @_jit
-def _curl_rows(tx, ty, cos, rcos, wlon, wlat, periodic, out, start, stop):
+def _scratch(nx):
+    """Scratch for _curl_row: cell indices, and per-cell flags padded to whole 8-byte words
+    (the padding stays zero)."""
+    return np.empty(nx, dtype=np.int64), np.zeros(8 * (nx // 8 + 1), dtype=np.uint8)
+
+
+@_jit
+def _curl_rows(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, start, stop):
     """Curl on rows start..stop-1 of the stack of fields flattened to (time x lat) rows."""
     ny, nx = tx.shape[1], tx.shape[2]
-    todo = np.empty(nx + 2, dtype=np.int64)
+    todo, flags = _scratch(nx)
     n_iso = 0
     for k in range(start, stop):
         t = k // ny
-        n_iso += _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, k - t * ny, out, todo)
+        n_iso += _curl_row(
+            tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, k - t * ny, out, todo, flags
+        )
     return n_iso
 
 
 @numba.njit(cache=True, error_model="numpy", parallel=True)
-def _curl_parallel(tx, ty, cos, rcos, wlon, wlat, periodic, out, nblocks):
+def _curl_parallel(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, nblocks):
     # A few contiguous blocks of rows per thread: each thread streams through memory, and the
     # per-call overhead (reference counts on shared arrays, which threads would fight over)
     # is paid per block rather than per row.
@@ -255,15 +274,15 @@ def _curl_parallel(tx, ty, cos, rcos, wlon, wlat, periodic, out, nblocks):
     isolated = np.zeros(nblocks, dtype=np.int64)
     for b in numba.prange(nblocks):
         isolated[b] = _curl_rows(
-            tx, ty, cos, rcos, wlon, wlat, periodic, out,
+            tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out,
             b * nrows // nblocks, (b + 1) * nrows // nblocks,
         )  # fmt: skip
     return isolated.sum()
 
 
 @_jit
-def _curl_serial(tx, ty, cos, rcos, wlon, wlat, periodic, out, nblocks):
-    return _curl_rows(tx, ty, cos, rcos, wlon, wlat, periodic, out, 0, tx.shape[0] * tx.shape[1])
+def _curl_serial(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, nblocks):
+    return _curl_rows(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, 0, tx.shape[0] * tx.shape[1])
 
 
 @_jit
@@ -304,19 +323,19 @@ def _scan_serial(v, dx, cells, run_starts, psi, totals, nblocks):
 
 @_jit
 def _sverdrup_rows(
-    tx, ty, cos, rcos, wlon, wlat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
+    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
     curl, v, psi, totals, start, stop,
 ):  # fmt: skip
     """Curl, V and the westward scan of rows start..stop-1 in one pass over each row."""
     ny, nx = tx.shape[1], tx.shape[2]
     n_runs = run_starts.size
     m = cells.size
-    todo = np.empty(nx + 2, dtype=np.int64)
+    todo, flags = _scratch(nx)
     n_iso = 0
     for k in range(start, stop):
         t = k // ny
         j = k - t * ny
-        n_iso += _curl_row(tx, ty, cos, rcos, wlon, wlat, periodic, t, j, curl, todo)
+        n_iso += _curl_row(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, j, curl, todo, flags)
         crow, vrow = curl[t, j], v[t, j]
         rb = rho0_beta[j]  # a local: the stores below could alias the array
         for i in range(nx):
@@ -340,7 +359,7 @@ def _sverdrup_rows(
 
 @numba.njit(cache=True, error_model="numpy", parallel=True)
 def _sverdrup_parallel(
-    tx, ty, cos, rcos, wlon, wlat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
+    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
     curl, v, psi, totals, nblocks,
 ):  # fmt: skip
     nrows = tx.shape[0] * tx.shape[1]
@@ -348,7 +367,7 @@ def _sverdrup_parallel(
     isolated = np.zeros(nblocks, dtype=np.int64)
     for b in numba.prange(nblocks):
         isolated[b] = _sverdrup_rows(
-            tx, ty, cos, rcos, wlon, wlat, periodic, rho0_beta, dx, cells, run_starts,
+            tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts,
             row_runs, curl, v, psi, totals, b * nrows // nblocks, (b + 1) * nrows // nblocks,
         )  # fmt: skip
     return isolated.sum()
@@ -356,11 +375,11 @@ def _sverdrup_parallel(
 
 @_jit
 def _sverdrup_serial(
-    tx, ty, cos, rcos, wlon, wlat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
+    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
     curl, v, psi, totals, nblocks,
 ):  # fmt: skip
     return _sverdrup_rows(
-        tx, ty, cos, rcos, wlon, wlat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
+        tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
         curl, v, psi, totals, 0, tx.shape[0] * tx.shape[1],
     )  # fmt: skip
 
@@ -452,11 +471,11 @@ def curl(taux, tauy, phi, lam, *, periodic: bool, radius: float, return_isolated
     lam = np.asarray(lam, dtype=np.float64)
     cos = np.ascontiguousarray(np.cos(phi))
     rcos = radius * cos
-    wlon = derivative_weights(lam, 2 * np.pi if periodic else None)
-    wlat = derivative_weights(phi, None)
+    wlon, plon = weight_tables(lam, 2 * np.pi if periodic else None)
+    wlat, plat = weight_tables(phi, None)
     out = np.empty(tx.shape)
     kernel = _curl_parallel if _in_main_thread() else _curl_serial
-    n_iso = kernel(tx, ty, cos, rcos, wlon, wlat, bool(periodic), out, _blocks())
+    n_iso = kernel(tx, ty, cos, rcos, wlon, wlat, plon, plat, bool(periodic), out, _blocks())
     out = out.reshape(shape)
     if return_isolated:
         return out, int(n_iso)
@@ -563,8 +582,8 @@ def sverdrup_fused(
     lam = np.asarray(lam, dtype=np.float64)
     cos = np.ascontiguousarray(np.cos(phi))
     rcos = radius * cos
-    wlon = derivative_weights(lam, 2 * np.pi if periodic else None)
-    wlat = derivative_weights(phi, None)
+    wlon, plon = weight_tables(lam, 2 * np.pi if periodic else None)
+    wlat, plat = weight_tables(phi, None)
     rb = np.ascontiguousarray(rho0_beta, dtype=np.float64)
     dxf = np.ascontiguousarray(np.broadcast_to(np.asarray(dx, dtype=np.float64), (ny, nx)))
     curl_out = np.empty(tx.shape)
@@ -573,7 +592,7 @@ def sverdrup_fused(
     totals = np.full((tx.shape[0], run_starts.size), np.nan)
     kernel = _sverdrup_parallel if _in_main_thread() else _sverdrup_serial
     kernel(
-        tx, ty, cos, rcos, wlon, wlat, bool(periodic), rb, dxf, cells, run_starts,
+        tx, ty, cos, rcos, wlon, wlat, plon, plat, bool(periodic), rb, dxf, cells, run_starts,
         np.ascontiguousarray(row_runs, dtype=np.int64), curl_out, v, psi, totals, _blocks(),
     )  # fmt: skip
     lead = shape[:-2]
