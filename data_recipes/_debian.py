@@ -9,11 +9,13 @@ records where each file came from and its sha256, so a second run can skip the w
 
 from __future__ import annotations
 
+import argparse
 import hashlib
 import json
 import os
 import shutil
 import subprocess
+import sys
 import tempfile
 from pathlib import Path
 
@@ -157,3 +159,17 @@ def fetch_unpacked(package: str, workdir: Path) -> tuple[Path, str]:
     """Download and unpack ``package`` below ``workdir``; return (root of the tree, version)."""
     deb = download(package, workdir)
     return unpack(deb, workdir / "tree"), package_version(deb)
+
+
+def run_recipe(label: str, fetch, doc: str, argv=None) -> int:
+    """Command-line entry shared by the recipes: ``--force`` re-downloads; errors are one line."""
+    parser = argparse.ArgumentParser(prog=f"python -m data_recipes.{label}",
+                                     description=doc.split("\n\n")[0])
+    parser.add_argument("--force", action="store_true", help="download again even if cached")
+    args = parser.parse_args(argv)
+    try:
+        fetch(force=args.force)
+    except RecipeError as err:
+        print(f"{label}: {err}", file=sys.stderr)
+        return 1
+    return 0

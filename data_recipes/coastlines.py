@@ -9,7 +9,6 @@ without a network. Only the shapefiles are taken from the archive; nothing is in
 
 from __future__ import annotations
 
-import argparse
 import sys
 import tempfile
 from pathlib import Path
@@ -97,15 +96,7 @@ def data_dir() -> Path:
 
 
 def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(prog=COMMAND, description=__doc__.split("\n\n")[0])
-    parser.add_argument("--force", action="store_true", help="download again even if cached")
-    args = parser.parse_args(argv)
-    try:
-        fetch(force=args.force)
-    except _debian.RecipeError as err:
-        print(f"coastlines: {err}", file=sys.stderr)
-        return 1
-    return 0
+    return _debian.run_recipe("coastlines", fetch, __doc__, argv)
 
 
 if __name__ == "__main__":

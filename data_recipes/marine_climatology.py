@@ -16,7 +16,6 @@ the download. From Python, :func:`path` returns a cached file or says how to fet
 
 from __future__ import annotations
 
-import argparse
 import sys
 import tempfile
 from dataclasses import dataclass
@@ -189,15 +188,7 @@ def path(name: str) -> Path:
 
 
 def main(argv=None) -> int:
-    parser = argparse.ArgumentParser(prog=COMMAND, description=__doc__.split("\n\n")[0])
-    parser.add_argument("--force", action="store_true", help="download again even if cached")
-    args = parser.parse_args(argv)
-    try:
-        fetch(force=args.force)
-    except _debian.RecipeError as err:
-        print(f"marine_climatology: {err}", file=sys.stderr)
-        return 1
-    return 0
+    return _debian.run_recipe("marine_climatology", fetch, __doc__, argv)
 
 
 if __name__ == "__main__":
