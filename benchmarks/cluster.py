@@ -94,7 +94,7 @@ def main(argv=None):
 
     print(f"\nwall time: in memory {t_mem:.2f} s, chunked on local threads {t_local:.2f} s, "
           f"LocalCluster {args.workers} processes {t_dist:.2f} s "
-          f"(includes sending data and, on first use, loading compiled kernels in each worker)")  # fmt: skip
+          "(includes starting the workers and sending the data)")  # fmt: skip
     print("\nchunked (local threads) vs in memory:")
     w1 = compare(local, ref)
     print("\nLocalCluster vs in memory:")

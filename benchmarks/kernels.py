@@ -83,8 +83,9 @@ def main(argv=None):
           f"{starts.size} runs")  # fmt: skip
 
     # Same numbers before timing anything.
-    c_ref, v_ref, psi_ref = naive.sverdrup(taux, tauy, lat, lon, periodic=True, dx=dx,
-                                           cells=cells, run_starts=starts, rho0_beta=rb)  # fmt: skip
+    c_ref, v_ref, psi_ref = naive.sverdrup(
+        taux, tauy, lat, lon, periodic=True, dx=dx, cells=cells, run_starts=starts, rho0_beta=rb
+    )
     c_f, v_f, psi_f, _ = _fast.sverdrup_fused(
         taux, tauy, phi, lam, periodic=True, radius=fields.RADIUS, rho0_beta=rb, dx=dx,
         cells=cells, run_starts=starts, row_runs=row_runs,
@@ -179,7 +180,8 @@ def main(argv=None):
             rate = cells_total / tt
             bound = bw * 1e9 / nbytes
             print(f"{name:24s}{tt:9.4f}{'':10s}{rate / 1e6:11.0f}   bound {bound / 1e6:.0f} M "
-                  f"cells/s at {nbytes} B/cell: {100 * rate / bound:.0f}% of triad bandwidth")  # fmt: skip
+                  f"cells/s at {nbytes} B/cell: {100 * rate / bound:.0f}% of triad "
+                  "bandwidth")  # fmt: skip
 
 
 if __name__ == "__main__":

@@ -64,7 +64,9 @@ def derivative(f, x, axis, *, period=None):
                 + hm * fm2 / (hmm * (hm + hmm)))  # fmt: skip
         fwd1 = (fp1 - f) / hp
         bwd1 = (f - fm1) / hm
-    patch = np.where(okpp, fwd2, np.where(okmm, bwd2, np.where(okp, fwd1, np.where(okm, bwd1, 0.0))))
+    patch = np.where(
+        okpp, fwd2, np.where(okmm, bwd2, np.where(okp, fwd1, np.where(okm, bwd1, 0.0)))
+    )
     d = np.where(okm & okp, d, patch)
     return np.where(np.isfinite(f), d, np.nan)
 

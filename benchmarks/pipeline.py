@@ -49,7 +49,8 @@ def main(argv=None):
     tx = xr.DataArray(taux, dims=("time", "lat", "lon"), coords=coords, attrs={"units": "Pa"})
     ty = xr.DataArray(tauy, dims=("time", "lat", "lon"), coords=coords, attrs={"units": "Pa"})
     mask = xr.DataArray(ocean, dims=("lat", "lon"), coords=coords)
-    print(f"fields: {taux.shape[0]} x {lat.size} x {lon.size}, land {100 * (1 - ocean.mean()):.0f}%")
+    print(f"fields: {taux.shape[0]} x {lat.size} x {lon.size}, "
+          f"land {100 * (1 - ocean.mean()):.0f}%")  # fmt: skip
 
     for name, fn in (
         ("wind_stress_curl", lambda: wind_stress_curl(tx, ty)),

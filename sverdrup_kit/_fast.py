@@ -132,7 +132,9 @@ def _ocean(a, b):
 
 
 @_jit
-def _one_point(ok_m, ok_mm, ok_p, ok_pp, f, fm1, fm2, fp1, fp2, w0, w1, w2, w3, w4, w5, w6, w7, w8, h_p, h_m):
+def _one_point(
+    ok_m, ok_mm, ok_p, ok_pp, f, fm1, fm2, fp1, fp2, w0, w1, w2, w3, w4, w5, w6, w7, w8, h_p, h_m
+):
     # Same order of preference and the same arithmetic as _kernels.masked_derivative. All
     # candidates are computed and the preferred one selected without branches: which one
     # applies changes from cell to cell along a coast, and mispredicted branches cost more
@@ -282,7 +284,8 @@ def _curl_parallel(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, nbl
 
 @_jit
 def _curl_serial(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, nblocks):
-    return _curl_rows(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, 0, tx.shape[0] * tx.shape[1])
+    nrows = tx.shape[0] * tx.shape[1]
+    return _curl_rows(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, 0, nrows)
 
 
 @_jit
@@ -323,7 +326,8 @@ def _scan_serial(v, dx, cells, run_starts, psi, totals, nblocks):
 
 @_jit
 def _sverdrup_rows(
-    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
+    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts,
+    row_runs,
     curl, v, psi, totals, start, stop,
 ):  # fmt: skip
     """Curl, V and the westward scan of rows start..stop-1 in one pass over each row."""
@@ -335,7 +339,9 @@ def _sverdrup_rows(
     for k in range(start, stop):
         t = k // ny
         j = k - t * ny
-        n_iso += _curl_row(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, j, curl, todo, flags)
+        n_iso += _curl_row(
+            tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, j, curl, todo, flags
+        )
         crow, vrow = curl[t, j], v[t, j]
         rb = rho0_beta[j]  # a local: the stores below could alias the array
         for i in range(nx):
@@ -359,7 +365,8 @@ def _sverdrup_rows(
 
 @numba.njit(cache=True, error_model="numpy", parallel=True)
 def _sverdrup_parallel(
-    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
+    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts,
+    row_runs,
     curl, v, psi, totals, nblocks,
 ):  # fmt: skip
     nrows = tx.shape[0] * tx.shape[1]
@@ -375,11 +382,13 @@ def _sverdrup_parallel(
 
 @_jit
 def _sverdrup_serial(
-    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
+    tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts,
+    row_runs,
     curl, v, psi, totals, nblocks,
 ):  # fmt: skip
     return _sverdrup_rows(
-        tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts, row_runs,
+        tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, rho0_beta, dx, cells, run_starts,
+        row_runs,
         curl, v, psi, totals, 0, tx.shape[0] * tx.shape[1],
     )  # fmt: skip
 

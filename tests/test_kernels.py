@@ -29,7 +29,8 @@ RHO0 = 1025.0
 
 
 def _load_naive():
-    spec = importlib.util.spec_from_file_location("naive_baseline", ROOT / "benchmarks" / "naive.py")
+    path = ROOT / "benchmarks" / "naive.py"
+    spec = importlib.util.spec_from_file_location("naive_baseline", path)
     mod = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(mod)
     return mod
@@ -77,7 +78,9 @@ def test_compiled_curl_matches_numpy_kernel(periodic):
     # the compiled kernel multiplies by the same rounded weights, so 1e-14 is generous.
     lat, lon, tx, ty = _random_case(1, periodic=periodic)
     phi, lam = np.deg2rad(lat), np.deg2rad(lon)
-    got, n_got = _fast.curl(tx, ty, phi, lam, periodic=periodic, radius=RADIUS, return_isolated=True)
+    got, n_got = _fast.curl(
+        tx, ty, phi, lam, periodic=periodic, radius=RADIUS, return_isolated=True
+    )
     ref, n_ref = _kernels.curl_kernel_numpy(
         tx, ty, phi, lam, periodic=periodic, radius=RADIUS, return_isolated=True
     )
