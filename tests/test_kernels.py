@@ -324,3 +324,50 @@ def test_compiled_fill_matches_numpy_fill(periodic):
     assert got.dtype == np.float64
     assert np.isnan(got[1]).all() and np.isfinite(got[2][target]).all()
     assert np.isnan(got[:, ~target]).all()
+
+
+@pytest.mark.parametrize(
+    "ny, nx, periodic, lat0, lat1",
+    [
+        (2, 5, True, 10.0, 12.0),  # two rows: no centred meridional difference
+        (2, 2, False, -10.0, 10.0),  # too narrow for the vectorised sweep
+        (3, 3, True, -90.0, 90.0),  # rows on the poles
+        (5, 7, False, -60.0, 60.0),
+        (9, 4, True, -89.0, 89.0),
+    ],
+)
+def test_compiled_curl_small_and_polar_grids(ny, nx, periodic, lat0, lat1):
+    # Source: derived from _kernels.curl_kernel_numpy on the grids where the compiled kernel
+    # leaves its vectorised sweep: edges, poles, single rows, two-cell rows.
+    rng = np.random.default_rng(ny * 100 + nx)
+    lat = np.linspace(lat0, lat1, ny) if ny > 1 else np.array([lat0])
+    lon = np.arange(nx) * (360.0 / nx) if periodic else np.sort(rng.uniform(0, 50, nx))
+    phi, lam = np.deg2rad(lat), np.deg2rad(lon)
+    for land in (0.0, 0.3, 1.0):
+        tx = rng.normal(size=(2, ny, nx))
+        ty = rng.normal(size=(2, ny, nx))
+        tx[rng.random(tx.shape) < land] = np.nan
+        got, n_got = _fast.curl(
+            tx, ty, phi, lam, periodic=periodic, radius=RADIUS, return_isolated=True
+        )
+        ref, n_ref = _kernels.curl_kernel_numpy(
+            tx, ty, phi, lam, periodic=periodic, radius=RADIUS, return_isolated=True
+        )
+        assert np.array_equal(np.isnan(got), np.isnan(ref))
+        np.testing.assert_allclose(got, ref, rtol=1e-13, atol=0, equal_nan=True)
+        assert n_got == n_ref
+
+
+def test_compiled_curl_views_and_single_field():
+    # Non-contiguous views (a transposed stack) and a 2-D field give the same numbers.
+    lat, lon, tx, ty = _random_case(9, periodic=True)
+    phi, lam = np.deg2rad(lat), np.deg2rad(lon)
+    ref = _kernels.curl_kernel_numpy(tx, ty, phi, lam, periodic=True, radius=RADIUS)
+    txv = np.ascontiguousarray(np.moveaxis(tx, 0, -1)).transpose(2, 0, 1)
+    tyv = np.ascontiguousarray(np.moveaxis(ty, 0, -1)).transpose(2, 0, 1)
+    assert not txv.flags.c_contiguous
+    got = _fast.curl(txv, tyv, phi, lam, periodic=True, radius=RADIUS)
+    assert _rel_err(got, ref) < 1e-14
+    one = _fast.curl(tx[0], ty[0], phi, lam, periodic=True, radius=RADIUS)
+    assert one.shape == tx.shape[1:]
+    assert _rel_err(one, ref[0]) < 1e-14
