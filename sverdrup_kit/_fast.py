@@ -153,17 +153,16 @@ def _one_point(
 
 
 @_jit
-def _curl_row(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, j, out, todo, flags):
-    """Curl along row j of field t into out[t, j]; returns the number of isolated derivatives.
-
-    ``todo`` and ``flags`` are scratch space from :func:`_scratch`.
+def _sweep_row(tx, ty, cos, rcos, wlon, wlat, t, j, out, todo, flags):
+    """First part of the curl along row j of field t: returns how many cells it left to
+    :func:`_fix_row`, listed in ``todo``; ``flags`` is scratch (see :func:`_scratch`).
 
     Most ocean cells have ocean on all four sides and take centred differences in both
-    directions. A first, branch-free (vectorised) sweep computes exactly that everywhere,
-    with NaN propagating from any land neighbour (the ``* 0.0`` terms bring in the other
-    component of each neighbour, since a cell is land when either is missing), and flags the
-    ocean cells it left NaN. Those, the two ends of the row and the rows the sweep skips are
-    then done case by case: coasts, grid edges and the wrap.
+    directions. This branch-free (vectorised) sweep computes exactly that everywhere, with NaN
+    propagating from any land neighbour (the ``* 0.0`` terms bring in the other component of
+    each neighbour, since a cell is land when either is missing), and flags the ocean cells it
+    left NaN. Those, the two ends of the row and the rows the sweep skips are left to
+    :func:`_fix_row`: coasts, grid edges and the wrap.
     """
     nt, ny, nx = tx.shape
     row = out[t, j]
@@ -172,29 +171,40 @@ def _curl_row(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, j, out, to
     if j == 0 or j == ny - 1 or abs(cos[j]) < 1e-12 or nx < 3:
         for i in range(nx):
             todo[i] = i
-        m = nx
-    else:
-        txs, txn = tx[t, j - 1], tx[t, j + 1]
-        tys, tyn = ty[t, j - 1], ty[t, j + 1]
-        cs, cc, cn, r = cos[j - 1], cos[j], cos[j + 1], rcos[j]
-        a, b, c = wlat[0, j], wlat[1, j], wlat[2, j]
-        for i in range(1, nx - 1):
-            dty = wlon[0, i] * yr[i - 1] + wlon[1, i] * yr[i] + wlon[2, i] * yr[i + 1]
-            dtx = a * (txs[i] * cs) + b * (xr[i] * cc) + c * (txn[i] * cn)
-            guard = (xr[i - 1] + xr[i + 1] + tys[i] + tyn[i]) * 0.0
-            value = (dty - dtx) / r + guard
-            row[i] = value
-            flags[i] = np.isnan(value) & np.isfinite(xr[i] + yr[i])
-        flags[0] = 1
-        flags[nx - 1] = 1
-        # Coastal cells are a few per cent and come in clusters: test eight flags at a time.
-        words = flags.view(np.uint64)
-        for w in range(words.size):
-            if words[w] != 0:
-                for i in range(8 * w, 8 * w + 8):
-                    if flags[i]:
-                        todo[m] = i
-                        m += 1
+        return nx
+    txs, txn = tx[t, j - 1], tx[t, j + 1]
+    tys, tyn = ty[t, j - 1], ty[t, j + 1]
+    cs, cc, cn, r = cos[j - 1], cos[j], cos[j + 1], rcos[j]
+    a, b, c = wlat[0, j], wlat[1, j], wlat[2, j]
+    for i in range(1, nx - 1):
+        dty = wlon[0, i] * yr[i - 1] + wlon[1, i] * yr[i] + wlon[2, i] * yr[i + 1]
+        dtx = a * (txs[i] * cs) + b * (xr[i] * cc) + c * (txn[i] * cn)
+        guard = (xr[i - 1] + xr[i + 1] + tys[i] + tyn[i]) * 0.0
+        value = (dty - dtx) / r + guard
+        row[i] = value
+        flags[i] = np.isnan(value) & np.isfinite(xr[i] + yr[i])
+    flags[0] = 1
+    flags[nx - 1] = 1
+    # Coastal cells are a few per cent and come in clusters: test eight flags at a time.
+    words = flags.view(np.uint64)
+    for w in range(words.size):
+        if words[w] != 0:
+            for i in range(8 * w, 8 * w + 8):
+                if flags[i]:
+                    todo[m] = i
+                    m += 1
+    return m
+
+
+@_jit
+def _fix_row(tx, ty, cos, rcos, plon, plat, periodic, t, j, out, todo, m):
+    """Second part of the curl along row j: the ``m`` cells listed in ``todo``, case by case.
+
+    Returns the number of derivatives with no ocean neighbour.
+    """
+    nt, ny, nx = tx.shape
+    row = out[t, j]
+    xr, yr = tx[t, j], ty[t, j]
     pole = abs(cos[j]) < 1e-12
     jm1, jm2 = max(j - 1, 0), max(j - 2, 0)
     jp1, jp2 = min(j + 1, ny - 1), min(j + 2, ny - 1)
@@ -245,24 +255,41 @@ def _curl_row(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, j, out, to
     return n_iso
 
 
+#: Rows between the sweep of a row and its case-by-case pass. The coastal stencils reach two
+#: rows north; lagging lets the sweep bring those rows into cache first, instead of each
+#: coastal cell waiting for memory.
+_LAG = 2
+
+
 @_jit
 def _scratch(nx):
-    """Scratch for _curl_row: cell indices, and per-cell flags padded to whole 8-byte words
-    (the padding stays zero)."""
-    return np.empty(nx, dtype=np.int64), np.zeros(8 * (nx // 8 + 1), dtype=np.uint8)
+    """Scratch for a run of rows: a ring of cell lists (one per row in flight), their lengths,
+    and per-cell flags padded to whole 8-byte words (the padding stays zero)."""
+    todo = np.empty((_LAG + 1, nx), dtype=np.int64)
+    counts = np.zeros(_LAG + 1, dtype=np.int64)
+    return todo, counts, np.zeros(8 * (nx // 8 + 1), dtype=np.uint8)
 
 
 @_jit
 def _curl_rows(tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, out, start, stop):
     """Curl on rows start..stop-1 of the stack of fields flattened to (time x lat) rows."""
     ny, nx = tx.shape[1], tx.shape[2]
-    todo, flags = _scratch(nx)
+    todo, counts, flags = _scratch(nx)
     n_iso = 0
-    for k in range(start, stop):
-        t = k // ny
-        n_iso += _curl_row(
-            tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, k - t * ny, out, todo, flags
-        )
+    for k in range(start, stop + _LAG):
+        if k < stop:
+            t = k // ny
+            s = k % (_LAG + 1)
+            counts[s] = _sweep_row(
+                tx, ty, cos, rcos, wlon, wlat, t, k - t * ny, out, todo[s], flags
+            )
+        q = k - _LAG
+        if q >= start:
+            t = q // ny
+            s = q % (_LAG + 1)
+            n_iso += _fix_row(
+                tx, ty, cos, rcos, plon, plat, periodic, t, q - t * ny, out, todo[s], counts[s]
+            )
     return n_iso
 
 
@@ -330,17 +357,28 @@ def _sverdrup_rows(
     row_runs,
     curl, v, psi, totals, start, stop,
 ):  # fmt: skip
-    """Curl, V and the westward scan of rows start..stop-1 in one pass over each row."""
+    """Curl, V and the westward scan of rows start..stop-1 in one pass over each row (V and
+    the scan follow each row's coastal pass, while the row is still in cache)."""
     ny, nx = tx.shape[1], tx.shape[2]
     n_runs = run_starts.size
     m = cells.size
-    todo, flags = _scratch(nx)
+    todo, counts, flags = _scratch(nx)
     n_iso = 0
-    for k in range(start, stop):
-        t = k // ny
-        j = k - t * ny
-        n_iso += _curl_row(
-            tx, ty, cos, rcos, wlon, wlat, plon, plat, periodic, t, j, curl, todo, flags
+    for k in range(start, stop + _LAG):
+        if k < stop:
+            t = k // ny
+            s = k % (_LAG + 1)
+            counts[s] = _sweep_row(
+                tx, ty, cos, rcos, wlon, wlat, t, k - t * ny, curl, todo[s], flags
+            )
+        q = k - _LAG
+        if q < start:
+            continue
+        t = q // ny
+        j = q - t * ny
+        s = q % (_LAG + 1)
+        n_iso += _fix_row(
+            tx, ty, cos, rcos, plon, plat, periodic, t, j, curl, todo[s], counts[s]
         )
         crow, vrow = curl[t, j], v[t, j]
         rb = rho0_beta[j]  # a local: the stores below could alias the array
@@ -354,8 +392,8 @@ def _sverdrup_rows(
         for r in range(row_runs[j], row_runs[j + 1]):
             stop_cell = run_starts[r + 1] if r + 1 < n_runs else m
             total = 0.0
-            for q in range(run_starts[r], stop_cell):
-                i = cells[q] - base
+            for n in range(run_starts[r], stop_cell):
+                i = cells[n] - base
                 f = vrow[i] * dx[j, i]
                 total += f
                 prow[i] = -(total - 0.5 * f)
