@@ -178,19 +178,30 @@ def test_runs_by_row_refuses_runs_across_rows():
 
 
 def test_worker_threads_give_the_same_numbers():
-    # A dask task runs in a worker thread, where the kernels run serially.
-    lat, lon, tx, ty = _random_case(5, periodic=True)
+    # A dask task runs in a worker thread, where the kernels run serially; the main thread
+    # splits rows (and runs) among threads. Each row is done the same way in both.
+    lat, lon, tx, ty = _random_case(5, periodic=True, nt=5)
     phi, lam = np.deg2rad(lat), np.deg2rad(lon)
-    main = _fast.curl(tx, ty, phi, lam, periodic=True, radius=RADIUS)
+    ocean = np.isfinite(tx[0]) & np.isfinite(ty[0])
+    cells, starts = naive.ocean_runs(ocean, periodic=True)
+    dx, rb = _dx(lat, lon), _rho0_beta(lat)
+
+    def run():
+        return (
+            _fast.curl(tx, ty, phi, lam, periodic=True, radius=RADIUS),
+            *_fast.sverdrup_fused(tx, ty, phi, lam, periodic=True, radius=RADIUS,
+                                  rho0_beta=rb, dx=dx, cells=cells, run_starts=starts),
+            *_fast.westward_scan(tx, dx, cells, starts),
+            _fast.fill_from_neighbours(tx, target=np.ones_like(ocean), periodic=True),
+        )  # fmt: skip
+
+    main = run()
     box = {}
-    th = threading.Thread(
-        target=lambda: box.setdefault(
-            "out", _fast.curl(tx, ty, phi, lam, periodic=True, radius=RADIUS)
-        )
-    )
+    th = threading.Thread(target=lambda: box.setdefault("out", run()))
     th.start()
     th.join()
-    np.testing.assert_array_equal(box["out"], main)
+    for got, ref in zip(box["out"], main):
+        np.testing.assert_array_equal(got, ref)
 
 
 def test_curl_kernel_dispatch_and_switch(monkeypatch):
