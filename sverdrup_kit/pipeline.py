@@ -83,10 +83,14 @@ def diagnose(
         warnings.simplefilter("ignore", RuntimeWarning)
         mean = stress.mean("time", keep_attrs=True) if has_time else stress
     if has_time:
-        # Land is where every time step is missing; a cell observed in some months only is
-        # averaged over the months it has, which the attrs say.
+        # Land is where every time step is missing; a cell observed in some months only (a
+        # ship-based climatology's gaps) is averaged over the months it has.
         for name in ("taux", "tauy"):
             mean[name].attrs["cell_methods"] = "time: mean"
+            mean[name].attrs["comment"] = (
+                "mean over the time steps with data; cells missing in some steps are averaged "
+                "over the steps they have"
+            )
     sv = sverdrup(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
                   equatorial_band=equatorial_band)
     ek = ekman(mean["taux"], mean["tauy"], rho0=rho0, equatorial_band=equatorial_band)
