@@ -1,4 +1,4 @@
-"""Compiled kernels (numba): one fused pass over the data for the curl and the westward scan.
+"""Compiled kernels (numba): the curl, the westward scan, the gap fill, and a fused pass.
 
 The NumPy kernels in :mod:`sverdrup_kit._kernels` state the method; these compute the same
 numbers (to round-off, usually bit for bit) in one pass over memory. Everything that depends
@@ -27,6 +27,7 @@ import numpy as np
 
 #: Setting this environment variable to 0 sends every kernel through the NumPy reference path.
 JIT_ENV = "SVERDRUP_KIT_JIT"
+
 
 def jit_enabled() -> bool:
     """Whether the compiled kernels are used (``SVERDRUP_KIT_JIT`` unset or not ``0``)."""
@@ -507,13 +508,16 @@ def _fill_serial(out, target, periodic):
 # --------------------------------------------------------------------------------------------
 
 
+def _stack(a, shape) -> np.ndarray:
+    """``a`` as a C-contiguous float64 stack of fields (n, ny, nx); copies only when needed."""
+    a = np.ascontiguousarray(np.broadcast_to(np.asarray(a, dtype=np.float64), shape))
+    return a.reshape((-1,) + shape[-2:])
+
+
 def curl(taux, tauy, phi, lam, *, periodic: bool, radius: float, return_isolated=False):
     """Compiled twin of :func:`sverdrup_kit._kernels.curl_kernel` (same arguments and result)."""
-    tx = np.ascontiguousarray(taux, dtype=np.float64)
-    ty = np.ascontiguousarray(tauy, dtype=np.float64)
-    shape = np.broadcast_shapes(tx.shape, ty.shape)
-    tx = np.ascontiguousarray(np.broadcast_to(tx, shape)).reshape((-1,) + shape[-2:])
-    ty = np.ascontiguousarray(np.broadcast_to(ty, shape)).reshape((-1,) + shape[-2:])
+    shape = np.broadcast_shapes(np.shape(taux), np.shape(tauy))
+    tx, ty = _stack(taux, shape), _stack(tauy, shape)
     phi = np.asarray(phi, dtype=np.float64)
     lam = np.asarray(lam, dtype=np.float64)
     cos = np.ascontiguousarray(np.cos(phi))
@@ -527,12 +531,6 @@ def curl(taux, tauy, phi, lam, *, periodic: bool, radius: float, return_isolated
     if return_isolated:
         return out, int(n_iso)
     return out
-
-
-def _stack(a, shape) -> np.ndarray:
-    """``a`` as a C-contiguous float64 stack of fields (n, ny, nx); copies only when needed."""
-    a = np.ascontiguousarray(np.broadcast_to(np.asarray(a, dtype=np.float64), shape))
-    return a.reshape((-1,) + shape[-2:])
 
 
 def westward_scan(v, dx, cells, run_starts):
@@ -612,7 +610,8 @@ def sverdrup_fused(
     v : ndarray (..., ny, nx)
         m2 s-1.
     psi : ndarray (..., ny, nx)
-        m3 s-1, zero at each run's eastern edge.
+        m3 s-1 at cell centres: minus the transport between the run's eastern edge and the
+        cell centre (as :func:`westward_scan`).
     totals : ndarray (..., n_runs)
         m3 s-1 across each run.
     """
