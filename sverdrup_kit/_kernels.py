@@ -117,7 +117,8 @@ def curl_kernel(taux, tauy, phi, lam, *, periodic: bool, radius: float, return_i
     radius : float
         Sphere radius in m.
     return_isolated : bool, optional
-        Also return the number of ocean cells where a derivative had no ocean neighbour.
+        Also return how many derivatives (cells times directions) were taken as zero because
+        the cell had no ocean neighbour in that direction.
 
     Notes
     -----
