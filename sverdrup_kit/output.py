@@ -43,6 +43,19 @@ def _prepare(ds: xr.Dataset) -> xr.Dataset:
     return out
 
 
+def _compression(var: xr.DataArray) -> dict:
+    """zlib with one whole horizontal field per compressed chunk.
+
+    netCDF-C's default chunks span many time steps, so a lazy write of a long record, one dask
+    block at a time, recompresses partly filled chunks over and over (benchmarks/streaming.py:
+    15.6 s for a year of daily 1-degree fields, 234 s for four years).
+    """
+    enc = {"zlib": True, "complevel": 4}
+    if var.ndim >= 2 and var.size > 0:
+        enc["chunksizes"] = (1,) * (var.ndim - 2) + tuple(var.shape[-2:])
+    return enc
+
+
 def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = True):
     """Write ``ds`` to ``path`` as CF-1.8 NetCDF-4, atomically.
 
@@ -74,7 +87,7 @@ def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = Tru
         raise ValueError("compute: must be True; an atomic write needs the data now.")
     out = _prepare(ds)
     encoding = {
-        name: {"zlib": True, "complevel": 4}
+        name: _compression(var)
         for name, var in out.data_vars.items()
         if np.issubdtype(var.dtype, np.number)
     }
