@@ -14,6 +14,8 @@ from sverdrup_kit.barotropic import boundary_current, solve_barotropic, solve_ba
 from sverdrup_kit.boundary_layers import munk_width, stommel_basin
 from sverdrup_kit.grid import beta_parameter
 
+from ._dask_guard import CountingScheduler
+
 RHO0 = 1025.0
 F = 0.1  # Pa, amplitude of tau_x = -F cos(pi y / b)
 
@@ -433,15 +435,6 @@ def test_real_one_degree_earth_mask_solves_in_seconds(etopo60):
     # Antarctica is ringed by the circumpolar channel, so it is an island with its own value
     k = int(out.land_mass.sel(lat=-80, lon=100, method="nearest"))
     assert k > 0 and out.attrs["island_streamfunction"][k - 1] != 0
-
-
-class CountingScheduler:
-    def __init__(self):
-        self.calls = 0
-
-    def __call__(self, dsk, keys, **kwargs):
-        self.calls += 1
-        return dask.get(dsk, keys, **kwargs)
 
 
 def test_dask_input_stays_lazy_and_matches_numpy():

@@ -10,6 +10,8 @@ from sverdrup_kit import SphericalGrid, wind_stress_curl
 from sverdrup_kit._coords import GridError
 from sverdrup_kit.constants import EARTH_RADIUS as R
 
+from ._dask_guard import CountingScheduler
+
 
 def analytic(lat, lon):
     """taux = cos(2 lam) cos^2(phi), tauy = sin(lam) cos(phi) and their exact curl.
@@ -180,15 +182,6 @@ def test_leading_dimensions_pass_through_and_input_untouched():
     np.testing.assert_allclose((c.isel(member=2) - c.isel(member=0)).values, lin.values,
                                rtol=1e-9, atol=1e-18)
     xr.testing.assert_identical(a, before)
-
-
-class CountingScheduler:
-    def __init__(self):
-        self.calls = 0
-
-    def __call__(self, dsk, keys, **kwargs):
-        self.calls += 1
-        return dask.get(dsk, keys, **kwargs)
 
 
 def test_dask_stays_lazy_and_matches_numpy():

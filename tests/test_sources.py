@@ -15,6 +15,8 @@ from sverdrup_kit._coords import GridError
 from sverdrup_kit._units import UnitsError
 from sverdrup_kit.sources import TimeDecodingWarning, open_stress, open_winds
 
+from ._dask_guard import CountingScheduler
+
 FILL = np.float32(-1e34)
 
 
@@ -421,18 +423,6 @@ def test_input_dataset_not_modified():
         open_winds(src)
     xr.testing.assert_identical(src, before)
     assert {k: dict(v.attrs) for k, v in src.variables.items()} == attrs
-
-
-class CountingScheduler:
-    """A dask scheduler that counts how often it is asked to compute (common practice in
-    cf_xarray/xarray test suites: raise or count on compute)."""
-
-    def __init__(self):
-        self.calls = 0
-
-    def __call__(self, dsk, keys, **kwargs):
-        self.calls += 1
-        return dask.get(dsk, keys, **kwargs)
 
 
 def test_opening_a_file_computes_nothing_and_stays_lazy(tmp_path):

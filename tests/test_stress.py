@@ -23,6 +23,8 @@ from sverdrup_kit.stress import (
     wind_stress,
 )
 
+from ._dask_guard import CountingScheduler
+
 KNOT = 1852.0 / 3600.0  # international knot in m s-1: 1852 m per hour (definition)
 LAT = np.array([-45.0, -15.0, 15.0, 45.0])
 LON = np.array([0.0, 90.0, 180.0, 270.0])
@@ -496,17 +498,6 @@ def test_no_warning_for_single_field_daily_data_or_given_speed():
 
 
 # ---------------------------------------------------------------- dask
-
-
-class CountingScheduler:
-    """A dask scheduler that counts how often it is asked to compute."""
-
-    def __init__(self):
-        self.calls = 0
-
-    def __call__(self, dsk, keys, **kwargs):
-        self.calls += 1
-        return dask.get(dsk, keys, **kwargs)
 
 
 def _monthly_winds():

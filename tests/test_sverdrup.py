@@ -13,6 +13,8 @@ from sverdrup_kit.constants import OMEGA, RHO0
 from sverdrup_kit.ekman import DEFAULT_EQUATORIAL_BAND
 from sverdrup_kit.sverdrup import sverdrup
 
+from ._dask_guard import CountingScheduler
+
 # ------------------------------------------------------------------------------------------
 # Small invented worlds on a global grid
 # ------------------------------------------------------------------------------------------
@@ -381,17 +383,6 @@ def test_same_answers_for_every_longitude_convention_and_latitude_order(world, k
 def _stack_time(a, n=4):
     scale = xr.DataArray(np.linspace(0.5, 1.5, n), dims="time")
     return (a * scale).transpose("time", "lat", "lon").assign_attrs(units="Pa")
-
-
-class CountingScheduler:
-    """A dask scheduler that counts how often it is asked to compute (common practice)."""
-
-    def __init__(self):
-        self.calls = 0
-
-    def __call__(self, dsk, keys, **kwargs):
-        self.calls += 1
-        return dask.get(dsk, keys, **kwargs)
 
 
 def test_dask_chunks_over_time_and_longitude_give_the_same_answers_lazily(world):
