@@ -1,0 +1,62 @@
+"""Properties that must hold for any field, checked on random ones (hypothesis)."""
+
+import numpy as np
+import xarray as xr
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from sverdrup_kit import sverdrup, wind_stress_curl
+
+SETTINGS = settings(max_examples=15, deadline=None)
+
+
+def random_world(seed, dlat, land_fraction):
+    """Global stress on a dlat-degree grid with random land blobs (NaN)."""
+    rng = np.random.default_rng(seed)
+    lat = np.arange(-90 + dlat / 2, 90, dlat)
+    lon = np.arange(dlat / 2, 360, dlat)
+    shape = (lat.size, lon.size)
+    tx = rng.normal(0, 0.1, shape)
+    ty = rng.normal(0, 0.05, shape)
+    land = rng.random(shape) < land_fraction
+    land[:, : lon.size // 6] = True  # one continent so every row has coasts
+    tx[land] = np.nan
+    ty[land] = np.nan
+    mk = lambda a: xr.DataArray(a, coords={"lat": lat, "lon": lon}, dims=("lat", "lon"),
+                                attrs={"units": "Pa"})
+    return mk(tx), mk(ty)
+
+
+@SETTINGS
+@given(seed=st.integers(0, 2**32 - 1), base=st.sampled_from([-360.0, -180.0, 0.0, 20.0, 360.0]),
+       roll=st.integers(0, 35), flip=st.booleans())
+def test_curl_does_not_depend_on_longitude_convention_roll_or_latitude_order(seed, base, roll,
+                                                                            flip):
+    # STYLE.md habit 8 (and gsw's -360/0/+360 fixture): the same field in any layout gives
+    # the same curl, point by point.
+    tx, ty = random_world(seed, 10.0, 0.2)
+    ref = wind_stress_curl(tx, ty)
+
+    def move(a):
+        # the same points labelled in base..base+360, then rolled: one wrap in the axis
+        a = a.assign_coords(lon=(a.lon - base) % 360 + base).sortby("lon")
+        a = a.roll(lon=roll, roll_coords=True)
+        return a.isel(lat=slice(None, None, -1)) if flip else a
+
+    out = wind_stress_curl(move(tx), move(ty))
+    back = out.sortby("lat").assign_coords(lon=out.lon % 360).sortby("lon")
+    np.testing.assert_allclose(back.values, ref.values, rtol=1e-10, atol=1e-22)
+
+
+@SETTINGS
+@given(seed=st.integers(0, 2**32 - 1), land=st.floats(0.0, 0.3))
+def test_sverdrup_conserves_mass_and_leaves_only_flagged_rows_empty(seed, land):
+    # Mass conservation (derived from the Sverdrup relation): the boundary current returns the
+    # interior transport exactly; and a row is empty exactly when row_status says why.
+    tx, ty = random_world(seed, 6.0, land)
+    ds = sverdrup(tx, ty)
+    total = ds.interior_transport + ds.boundary_current_transport
+    assert np.all((total.values == 0) | np.isnan(total.values))
+    valid = ds.row_status.values == 0
+    assert np.all(np.isfinite(ds.interior_transport.values[valid]))
+    assert np.all(np.isnan(ds.interior_transport.values[~valid]))
