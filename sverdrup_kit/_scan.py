@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 
 
-def fill_from_neighbours(a, *, target, periodic):
+def fill_from_neighbours_numpy(a, *, target, periodic):
     """Fill missing values of ``a`` inside ``target`` by repeated nearest-ocean averaging.
 
     Parameters
@@ -54,7 +54,7 @@ def fill_from_neighbours(a, *, target, periodic):
         out = np.where(fill, total / np.where(count > 0, count, 1.0), out)
 
 
-def westward_scan(v, dx, cells, run_starts):
+def westward_scan_numpy(v, dx, cells, run_starts):
     r"""Integrate ``v`` westward along runs of cells, each from its eastern end.
 
     Parameters
@@ -103,6 +103,30 @@ def westward_scan(v, dx, cells, run_starts):
     nbad_run = np.add.reduceat(bad.astype(np.int64), run_starts, axis=-1)
     totals = np.where(nbad_run > 0, np.nan, totals)
     return psi.reshape(v.shape), totals
+
+
+def fill_from_neighbours(a, *, target, periodic):
+    """Fill missing values of ``a`` inside ``target``: see :func:`fill_from_neighbours_numpy`.
+
+    Runs the compiled twin in :mod:`sverdrup_kit._fast` (the same numbers) unless the
+    environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    from . import _fast
+
+    kernel = _fast.fill_from_neighbours if _fast.jit_enabled() else fill_from_neighbours_numpy
+    return kernel(a, target=target, periodic=periodic)
+
+
+def westward_scan(v, dx, cells, run_starts):
+    """Westward integral along runs: see :func:`westward_scan_numpy`.
+
+    Runs the compiled twin in :mod:`sverdrup_kit._fast` (the same numbers to round-off: it
+    sums each run from zero) unless the environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    from . import _fast
+
+    kernel = _fast.westward_scan if _fast.jit_enabled() else westward_scan_numpy
+    return kernel(v, dx, cells, run_starts)
 
 
 def sum_groups(totals, group_runs, group_starts, group_slot, n_slots):

@@ -134,7 +134,7 @@ def test_compiled_scan_matches_numpy_scan_and_reversed_cumsum(periodic):
     v[1, 5, :] = np.nan  # a whole row unknown in one time step
     dx = _dx(lat, lon)
     psi, totals = _fast.westward_scan(v, dx, cells, starts)
-    psi_np, totals_np = _scan.westward_scan(v, dx, cells, starts)
+    psi_np, totals_np = _scan.westward_scan_numpy(v, dx, cells, starts)
     assert psi.dtype == totals.dtype == np.float64
     assert _rel_err(psi, psi_np) < 1e-12
     assert _rel_err(totals, totals_np) < 1e-12
@@ -283,7 +283,7 @@ def _check_realistic(lat, lon, tx, ty, periodic):
         rho0_beta=rb, radius=RADIUS,
     )  # fmt: skip
     assert _rel_err(psi, psi_ref) < 1e-12
-    psi_np, totals_np = _scan.westward_scan(v, dx, cells, starts)
+    psi_np, totals_np = _scan.westward_scan_numpy(v, dx, cells, starts)
     assert _rel_err(psi, psi_np) < 1e-12
     assert _rel_err(totals, totals_np) < 1e-12
     # Subtropical gyres: westward integrals of negative curl give sizeable transports.
@@ -329,7 +329,7 @@ def test_compiled_fill_matches_numpy_fill(periodic):
     a[2, :25, :] = np.nan  # a wide gap needing many passes
     keep = a.copy()
     got = _fast.fill_from_neighbours(a, target=target, periodic=periodic)
-    ref = _scan.fill_from_neighbours(a, target=target, periodic=periodic)
+    ref = _scan.fill_from_neighbours_numpy(a, target=target, periodic=periodic)
     np.testing.assert_array_equal(a, keep)
     np.testing.assert_array_equal(got, ref)
     assert got.dtype == np.float64
