@@ -7,7 +7,8 @@ from hypothesis import strategies as st
 
 from sverdrup_kit import sverdrup, wind_stress_curl
 
-SETTINGS = settings(max_examples=15, deadline=None)
+# derandomize: the same examples on every run, so CI results are reproducible.
+SETTINGS = settings(max_examples=15, deadline=None, derandomize=True)
 
 
 def random_world(seed, dlat, land_fraction):
@@ -45,7 +46,11 @@ def test_curl_does_not_depend_on_longitude_convention_roll_or_latitude_order(see
 
     out = wind_stress_curl(move(tx), move(ty))
     back = out.sortby("lat").assign_coords(lon=out.lon % 360).sortby("lon")
-    np.testing.assert_allclose(back.values, ref.values, rtol=1e-10, atol=1e-22)
+    # Relabelled longitudes (x + 360) change the grid spacings in the last bits, so compare to
+    # round-off of the field's scale: a cell where the two derivative terms cancel can differ
+    # by 1e-21 on a 1e-6 field.
+    scale = float(np.nanmax(np.abs(ref.values)))
+    np.testing.assert_allclose(back.values, ref.values, rtol=1e-10, atol=1e-12 * scale)
 
 
 @SETTINGS
