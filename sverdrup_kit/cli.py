@@ -152,6 +152,11 @@ def _run_diagnose(args) -> int:
     return 0
 
 
+def _warn_one_line(message, category, filename, lineno, file=None, line=None):
+    """Show a warning as one line naming its kind, without the source line it came from."""
+    print(f"sverdrup-kit: {category.__name__}: {message}", file=sys.stderr if file is None else file)
+
+
 def main(argv=None) -> int:
     """Entry point of the ``sverdrup-kit`` command."""
     args = _parser().parse_args(argv)
@@ -159,6 +164,7 @@ def main(argv=None) -> int:
     try:
         with warnings.catch_warnings():
             warnings.simplefilter("default")
+            warnings.showwarning = _warn_one_line
             if args.command == "diagnose":
                 return _run_diagnose(args)
     except CommandError as err:

@@ -66,3 +66,16 @@ def test_entry_point_runs_as_a_module():
     proc = subprocess.run([sys.executable, "-m", "sverdrup_kit.cli", "--help"],
                           capture_output=True, text=True, check=True)
     assert "diagnose" in proc.stdout
+
+
+@pytest.mark.realdata
+def test_real_climatology_runs_and_warnings_are_one_line(marine_climatology, tmp_path, capsys):
+    # COADS (Woodruff et al. 1987) has a year-0 time axis: one TimeDecodingWarning, shown as one
+    # line, and the named Earth basins in the summary.
+    code = main(["diagnose", str(marine_climatology), "--basins", "earth", "--out",
+                 str(tmp_path), "--no-figures", "--no-progress"])
+    captured = capsys.readouterr()
+    assert code == 0
+    err = [line for line in captured.err.splitlines() if line.strip()]
+    assert len(err) == 1 and err[0].startswith("sverdrup-kit: TimeDecodingWarning:"), err
+    assert "atlantic" in captured.out and "pacific" in captured.out
