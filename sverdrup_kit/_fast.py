@@ -25,6 +25,8 @@ from functools import lru_cache, partial
 import numba
 import numpy as np
 
+from ._kernels import _shift_coord
+
 #: Setting this environment variable to 0 sends every kernel through the NumPy reference path.
 JIT_ENV = "SVERDRUP_KIT_JIT"
 
@@ -51,25 +53,10 @@ def _blocks() -> int:
 _C_M, _C_0, _C_P, _F_0, _F_1, _F_2, _B_0, _B_1, _B_2, _H_P, _H_M = range(11)
 
 
-def _neighbour_coord(x: np.ndarray, k: int, period: float | None) -> np.ndarray:
-    """x[i + k] across the wrap (period added or removed), linear beyond the ends otherwise."""
-    n = x.size
-    idx = np.arange(n) + k
-    if period is not None:
-        return x[idx % n] + np.floor_divide(idx, n) * period
-    lo, hi = x[1] - x[0], x[-1] - x[-2]
-    out = np.empty(n)
-    inside = (idx >= 0) & (idx < n)
-    out[inside] = x[idx[inside]]
-    out[idx < 0] = x[0] + idx[idx < 0] * lo
-    out[idx >= n] = x[-1] + (idx[idx >= n] - n + 1) * hi
-    return out
-
-
 def _derivative_weights(x: np.ndarray, period: float | None) -> np.ndarray:
     # The expressions are written exactly as in _kernels.masked_derivative, so that the
     # compiled derivative multiplies by the same rounded weights and agrees bit for bit.
-    xm2, xm1, x0, xp1, xp2 = (_neighbour_coord(x, k, period) for k in (-2, -1, 0, 1, 2))
+    xm2, xm1, x0, xp1, xp2 = (_shift_coord(x, k, period=period) for k in (-2, -1, 0, 1, 2))
     hm, hp = x0 - xm1, xp1 - x0
     hmm, hpp = xm1 - xm2, xp2 - xp1
     w = np.empty((11, x.size))
