@@ -26,7 +26,7 @@ import re
 import tempfile
 import warnings
 from contextlib import contextmanager
-from functools import lru_cache
+from functools import lru_cache, partial
 from pathlib import Path
 from typing import NamedTuple
 
@@ -1389,25 +1389,20 @@ def save_standard_figures(data: xr.Dataset, folder, *, width="page", dpi: int = 
                         "Fix: pass the result of sverdrup_kit.pipeline.diagnose.")
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
-    jobs = []
-    if "taux" in data and "tauy" in data:
-        jobs.append(("wind_stress", lambda: map_wind_stress(data, width=width,
-                                                            coastlines=coastlines)))
-    if "wind_stress_curl" in data:
-        jobs.append(("wind_stress_curl", lambda: map_curl(data, width=width,
-                                                          coastlines=coastlines)))
-    if "ekman_pumping" in data:
-        jobs.append(("ekman_pumping", lambda: map_ekman_pumping(data, width=width,
-                                                                coastlines=coastlines)))
-    if "streamfunction" in data:
-        jobs.append(("streamfunction", lambda: map_streamfunction(data, width=width,
-                                                                  coastlines=coastlines)))
+    maps = (
+        ("wind_stress", ("taux", "tauy"), map_wind_stress),
+        ("wind_stress_curl", ("wind_stress_curl",), map_curl),
+        ("ekman_pumping", ("ekman_pumping",), map_ekman_pumping),
+        ("streamfunction", ("streamfunction",), map_streamfunction),
+    )
+    jobs = [(stem, partial(draw, data, width=width, coastlines=coastlines))
+            for stem, needs, draw in maps if all(name in data for name in needs)]
     if "interior_transport" in data:
-        jobs.append(("transport", lambda: plot_transport(data, width=width)))
+        jobs.append(("transport", partial(plot_transport, data, width=width)))
     if "interior_transport_by_time" in data:
-        jobs.append(("seasonal_transport", lambda: plot_hovmoller(
-            data["interior_transport_by_time"], row_status=data.get("row_status"),
-            width=width)))
+        jobs.append(("seasonal_transport", partial(
+            plot_hovmoller, data["interior_transport_by_time"],
+            row_status=data.get("row_status"), width=width)))
     paths = []
     for stem, draw in jobs:
         fig, _ = draw()
