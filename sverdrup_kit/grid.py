@@ -61,7 +61,7 @@ def beta_parameter(lat, *, omega: float = constants.OMEGA, radius: float = const
     return b
 
 
-def _edges(centres: np.ndarray) -> np.ndarray:
+def cell_edges(centres: np.ndarray) -> np.ndarray:
     """Cell edges half-way between centres, with end cells as wide as their neighbours."""
     mid = 0.5 * (centres[1:] + centres[:-1])
     first = centres[0] - (mid[0] - centres[0])
@@ -134,14 +134,14 @@ class SphericalGrid:
 
     @cached_property
     def lat_edges(self) -> np.ndarray:
-        return np.clip(_edges(self.lat), -90.0, 90.0)
+        return np.clip(cell_edges(self.lat), -90.0, 90.0)
 
     @cached_property
     def lon_edges(self) -> np.ndarray:
         if self.periodic:
             d = (self.lon[-1] - self.lon[0]) / (self.lon.size - 1)
             return np.concatenate([self.lon - d / 2, [self.lon[-1] + d / 2]])
-        return _edges(self.lon)
+        return cell_edges(self.lon)
 
     @cached_property
     def coslat(self) -> np.ndarray:

@@ -43,6 +43,7 @@ from matplotlib import ticker as mticker
 from shapely.geometry import LineString
 
 from ._coords import grid_layout, require_dataarray, to_canonical
+from .grid import cell_edges
 
 with warnings.catch_warnings():
     # cmocean 3.0 builds its maps with an argument matplotlib 3.11 deprecates; the maps are
@@ -318,12 +319,6 @@ def _mask_like(mask: xr.DataArray, lat: np.ndarray, lon: np.ndarray, argname: st
     return np.asarray(m, dtype=float)[:, cols] > 0.5
 
 
-def _edges(x: np.ndarray, *, clip=None) -> np.ndarray:
-    mid = 0.5 * (x[1:] + x[:-1])
-    e = np.concatenate([[x[0] - (mid[0] - x[0])], mid, [x[-1] + (x[-1] - mid[-1])]])
-    return np.clip(e, *clip) if clip else e
-
-
 # --- maps ---------------------------------------------------------------------------------------
 
 
@@ -332,7 +327,7 @@ class _MapGrid:
 
     def __init__(self, lat, lon, periodic, land):
         self.lat, self.periodic = lat, periodic
-        self.lat_e = _edges(lat, clip=(-90, 90))
+        self.lat_e = np.clip(cell_edges(lat), -90, 90)
         if periodic:
             # Put the seam of the map through the longitude with most land, so that basins are
             # drawn whole (through a continent on the synthetic world, Africa-Europe on Earth).
@@ -344,7 +339,7 @@ class _MapGrid:
         self.lon = np.roll(lon, -self.shift)
         if periodic and self.shift:
             self.lon[-self.shift:] += 360.0
-        self.lon_e = _edges(self.lon)
+        self.lon_e = cell_edges(self.lon)
         if periodic:
             # Edges exactly on the seam project to either side of the map and make cartopy
             # split every cell along it; a hair's breadth inside keeps each cell whole.
@@ -1291,7 +1286,7 @@ def plot_hovmoller(data, *, basin=None, row_status=None, width="column", cmap=No
             field = shown if b is None else shown.sel(basin=b)
             field = field.transpose(lat_name, "time")
             lat = field[lat_name].values
-            mesh = ax.pcolormesh(_edges(t.astype(float)), _edges(lat, clip=(-90, 90)),
+            mesh = ax.pcolormesh(cell_edges(t.astype(float)), np.clip(cell_edges(lat), -90, 90),
                                  field.values / scale, cmap=cmap, norm=norm, rasterized=True)
             vals = field.values
             finite = vals[np.isfinite(vals)]
