@@ -236,6 +236,30 @@ def from_canonical(obj, layout: GridLayout, original):
     )
 
 
+def matching_positions(a: np.ndarray, b: np.ndarray, period: float | None = None):
+    """Positions in ``a`` of each value of ``b``, or None when the two sets of points differ.
+
+    With ``period`` (360 for longitude) values are compared on the circle, so the same cells
+    in another convention (0..360, -180..180, 20..380) or order still match.
+    """
+    a = np.asarray(a, dtype=np.float64)
+    b = np.asarray(b, dtype=np.float64)
+    if a.shape != b.shape or a.ndim != 1:
+        return None
+    ka = np.mod(a, period) if period else a
+    kb = np.mod(b, period) if period else b
+    order = np.argsort(ka)
+    pos = np.searchsorted(ka[order], kb)
+    # the nearest value is the one just below or just above (wrapping round the circle)
+    below, above = order[(pos - 1) % a.size], order[pos % a.size]
+    dist = lambda k: np.abs(ka[k] - kb) if not period else np.abs(
+        (ka[k] - kb + period / 2) % period - period / 2)
+    take = np.where(dist(below) <= dist(above), below, above)
+    if np.max(dist(take)) > 1e-6:
+        return None
+    return take
+
+
 def check_same_grid(a: xr.DataArray, b: xr.DataArray, names: tuple[str, str]) -> None:
     """Raise when two fields that must share a grid do not."""
     for coord in set(a.coords) & set(b.coords):

@@ -27,7 +27,7 @@ import xarray as xr
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
-from ._coords import GridError, to_canonical
+from ._coords import GridError, matching_positions, to_canonical
 from .grid import SphericalGrid
 
 __all__ = [
@@ -337,7 +337,7 @@ def _mask_on_grid(da, ref, layout, argname):
         )
     for name, period in ((lat_name, None), (lon_name, 360.0)):
         a, b = np.asarray(da[name].values, float), np.asarray(ref[name].values, float)
-        take = _matching_positions(a, b, period)
+        take = matching_positions(a, b, period)
         if take is None:
             raise GridError(
                 f"{argname}: expected the same '{name}' points as taux ({b.size} values "
@@ -349,20 +349,6 @@ def _mask_on_grid(da, ref, layout, argname):
         # The same points in another order or longitude convention: put them in taux's.
         da = da.isel({name: take}).assign_coords({name: ref[name].values})
     return np.asarray(to_canonical(da, layout).transpose(lat_name, lon_name).values)
-
-
-def _matching_positions(a: np.ndarray, b: np.ndarray, period: float | None):
-    """Positions in ``a`` of each value of ``b`` (modulo ``period``), or None if they differ."""
-    if a.shape != b.shape:
-        return None
-    ka = np.mod(a, period) if period else a
-    kb = np.mod(b, period) if period else b
-    order = np.argsort(ka)
-    pos = np.searchsorted(ka[order], kb).clip(0, a.size - 1)
-    take = order[pos]
-    if not np.allclose(ka[take], kb, atol=1e-6):
-        return None
-    return take
 
 
 def _as_bool(vals, argname):

@@ -42,7 +42,7 @@ from matplotlib import patches as mpatches
 from matplotlib import ticker as mticker
 from shapely.geometry import LineString
 
-from ._coords import grid_layout, require_dataarray, to_canonical
+from ._coords import grid_layout, matching_positions, require_dataarray, to_canonical
 from .grid import cell_edges
 
 with warnings.catch_warnings():
@@ -308,9 +308,8 @@ def _mask_like(mask: xr.DataArray, lat: np.ndarray, lon: np.ndarray, argname: st
     ml = grid_layout(mask, argname=argname)
     m = to_canonical(mask, ml).transpose(ml.lat_name, ml.lon_name).values
     same_lat = ml.lat.shape == lat.shape and np.allclose(ml.lat, lat, atol=1e-6)
-    dist = np.abs((lon[:, None] - ml.lon[None, :] + 180.0) % 360.0 - 180.0)
-    cols = np.argmin(dist, axis=1)
-    if not same_lat or ml.lon.size != lon.size or dist[np.arange(lon.size), cols].max() > 1e-6:
+    cols = matching_positions(ml.lon, lon, 360.0)
+    if not same_lat or cols is None:
         raise ValueError(
             f"{argname}: expected the grid of the data ({lat.size} x {lon.size}), found "
             f"{ml.lat.size} x {ml.lon.size} with other latitudes or longitudes. Fix: pass the "

@@ -71,3 +71,20 @@ def test_coordinates_found_by_attributes_and_ambiguity_refused():
         grid_layout(two)
     with pytest.raises(GridError, match="expected a latitude"):
         grid_layout(xr.DataArray(np.zeros((3, 4)), dims=("a", "b")))
+
+
+def test_matching_positions_compares_longitudes_on_the_circle():
+    # The same cells in 0..360 and -180..180 (and a value a hair below 360 matching 0) match;
+    # shifted cells do not (common practice: longitudes are equal modulo 360).
+    from sverdrup_kit._coords import matching_positions
+
+    a = np.arange(1.0, 360.0, 2.0)
+    b = (a + 180.0) % 360.0 - 180.0
+    take = matching_positions(a, b, 360.0)
+    np.testing.assert_allclose(a[take] % 360.0, b % 360.0)
+    assert matching_positions(a, b + 0.5, 360.0) is None
+    np.testing.assert_array_equal(
+        matching_positions(np.array([0.0, 120.0, 240.0]), np.array([359.9999999, 120.0, 240.0]),
+                           360.0), [0, 1, 2])
+    np.testing.assert_array_equal(matching_positions(np.array([0.0, 1.0, 2.0]),
+                                                     np.array([2.0, 0.0, 1.0])), [2, 0, 1])
