@@ -18,11 +18,11 @@ def whole_fields(da: xr.DataArray, dims: tuple[str, ...]) -> xr.DataArray:
     return da.chunk({d: -1 for d in dims})
 
 
-def apply_grid_kernel(kernel, *arrays, dims, n_out=1, kwargs=None, like=None):
+def apply_grid_kernel(kernel, *arrays, dims, n_out=1, kwargs=None):
     """Apply ``kernel`` over the horizontal ``dims`` of ``arrays``.
 
-    Returns one DataArray (or a tuple of ``n_out``), float64, with the dimension order of
-    ``like`` (default: the first array) and no attributes.
+    Returns one DataArray (or a tuple of ``n_out``), float64, with the dimension order of the
+    first array and no attributes of its own (coordinates keep theirs).
     """
     dims = list(dims)
     arrays = [whole_fields(a, tuple(dims)) for a in arrays]
@@ -38,8 +38,7 @@ def apply_grid_kernel(kernel, *arrays, dims, n_out=1, kwargs=None, like=None):
         # them, and drop only the data variables' attributes below.
         keep_attrs=True,
     )
-    like = arrays[0] if like is None else like
-    order = [d for d in like.dims]
+    order = list(arrays[0].dims)
     outs = out if n_out > 1 else (out,)
     outs = tuple(_bare(o.transpose(*[d for d in order if d in o.dims], ...)) for o in outs)
     return outs if n_out > 1 else outs[0]
