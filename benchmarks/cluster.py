@@ -23,10 +23,10 @@ import xarray as xr
 
 
 def pipeline(u, v, mask):
-    from sverdrup_kit.ekman import ekman
-    from sverdrup_kit.operators import wind_stress_curl
-    from sverdrup_kit.stress import wind_stress
-    from sverdrup_kit.sverdrup import sverdrup
+    from sverdrup_kit.physics.ekman import ekman
+    from sverdrup_kit.physics.operators import wind_stress_curl
+    from sverdrup_kit.physics.stress import wind_stress
+    from sverdrup_kit.physics.sverdrup import sverdrup
 
     st = wind_stress(u, v)
     out = xr.merge(

@@ -17,10 +17,10 @@ import fields
 import numpy as np
 import xarray as xr
 
-from sverdrup_kit import _fast
-from sverdrup_kit.ekman import ekman
-from sverdrup_kit.operators import wind_stress_curl
-from sverdrup_kit.sverdrup import sverdrup
+from sverdrup_kit._compiled import dispatch, jit as _fast
+from sverdrup_kit.physics.ekman import ekman
+from sverdrup_kit.physics.operators import wind_stress_curl
+from sverdrup_kit.physics.sverdrup import sverdrup
 
 
 def best_time(fn, repeat):
@@ -75,15 +75,15 @@ def main(argv=None):
     print(f"{'':18s}{'compiled s':>12s}{'NumPy s':>10s}{'ratio':>8s}{'max |diff| / max':>18s}")
     for name, fn in funcs.items():
         t_fast, fast = best_time(fn, args.repeat)
-        before = os.environ.get(_fast.JIT_ENV)
-        os.environ[_fast.JIT_ENV] = "0"
+        before = os.environ.get(dispatch.JIT_ENV)
+        os.environ[dispatch.JIT_ENV] = "0"
         try:
             t_np, ref = best_time(fn, max(1, args.repeat // 2))
         finally:
             if before is None:
-                del os.environ[_fast.JIT_ENV]
+                del os.environ[dispatch.JIT_ENV]
             else:
-                os.environ[_fast.JIT_ENV] = before
+                os.environ[dispatch.JIT_ENV] = before
         diff = worst_difference(fast, ref)
         print(f"{name:18s}{t_fast:12.3f}{t_np:10.3f}{t_np / t_fast:7.1f}x{diff:18.1e}")
 

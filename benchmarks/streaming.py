@@ -69,12 +69,12 @@ def run_case(mode, days, chunk):
     import dask
     import xarray as xr
 
-    from sverdrup_kit import _progress
-    from sverdrup_kit.ekman import ekman
-    from sverdrup_kit.operators import wind_stress_curl
-    from sverdrup_kit.output import write_netcdf
-    from sverdrup_kit.stress import wind_stress
-    from sverdrup_kit.sverdrup import sverdrup
+    from sverdrup_kit import progress as _progress
+    from sverdrup_kit.physics.ekman import ekman
+    from sverdrup_kit.physics.operators import wind_stress_curl
+    from sverdrup_kit.io.writers import write_netcdf
+    from sverdrup_kit.physics.stress import wind_stress
+    from sverdrup_kit.physics.sverdrup import sverdrup
 
     def pipeline(days):
         u, v, mask = _lazy_winds(days, chunk)

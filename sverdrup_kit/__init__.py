@@ -1,18 +1,19 @@
 """sverdrup_kit: wind-driven ocean circulation diagnostics from gridded wind climatologies.
 
-The data path, one module per step: :mod:`.sources` (open_winds, open_stress) ->
-:mod:`.stress` (drag laws, wind_stress) -> :mod:`.operators` and :mod:`.ekman` (curl, Ekman
-transport and pumping on the sphere) -> :mod:`.sverdrup` (westward integral from eastern
-coasts, per basin) -> :mod:`.boundary_layers` and :mod:`.barotropic` (Stommel and Munk
-closure) -> :mod:`.observations`, :mod:`.plotting`, :mod:`.output`.
+The package tree follows the data path: :mod:`.io` (reading winds and stress, units, writing
+CF NetCDF) -> :mod:`.physics` (drag laws, operators on the sphere, Ekman, Sverdrup, boundary
+layers and the barotropic solver) on the grids of :mod:`.geometry` (grid, coordinates, basins)
+-> :mod:`.ocean` (comparison with the ocean) -> :mod:`.plotting`. Kernels live in
+``_compiled`` behind one dispatch point; :mod:`.pipeline` and :mod:`.cli` run the whole path.
+Users import from this top level (or the public sub-packages), never from a private module.
 
 Results are climatological diagnostics for research, not forecasts for navigation or
 marine operations.
 """
 
-from .barotropic import boundary_current, solve_barotropic, solve_basin
-from .basins import basin_mask
-from .boundary_layers import (
+from .physics.barotropic import boundary_current, solve_barotropic, solve_basin
+from .geometry.basins import basin_mask
+from .physics.boundary_layers import (
     munk_boundary_layer,
     munk_edge_distance,
     munk_peak_distance,
@@ -21,14 +22,14 @@ from .boundary_layers import (
     stommel_width,
 )
 from .constants import AIR_DENSITY, EARTH_RADIUS, OMEGA, RHO0, SVERDRUP
-from .ekman import ekman
-from .grid import SphericalGrid, beta_parameter, coriolis_parameter
-from .observations import boundary_current_observations
-from .operators import curl_on_sphere, wind_stress_curl
-from .output import write_netcdf
-from .sources import TimeDecodingWarning, open_stress, open_winds
-from .stress import DRAG_LAWS, DragLaw, MonthlyMeanWindWarning, drag_coefficient, wind_stress
-from .sverdrup import sverdrup
+from .physics.ekman import ekman
+from .geometry.grid import SphericalGrid, beta_parameter, coriolis_parameter
+from .ocean.observations import boundary_current_observations
+from .physics.operators import curl_on_sphere, wind_stress_curl
+from .io.writers import write_netcdf
+from .io.readers import TimeDecodingWarning, open_stress, open_winds
+from .physics.stress import DRAG_LAWS, DragLaw, MonthlyMeanWindWarning, drag_coefficient, wind_stress
+from .physics.sverdrup import sverdrup
 from .pipeline import diagnose
 
 __version__ = "0.1.0"

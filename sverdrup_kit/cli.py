@@ -68,7 +68,8 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def _open(args):
-    from . import open_stress, open_winds
+    from . import open_stress
+    from . import open_winds
     from .synthetic import load_world
 
     if args.synthetic:
@@ -113,7 +114,7 @@ def _summary(res, say) -> None:
 
 
 def _run_diagnose(args) -> int:
-    from .output import write_netcdf
+    from .io.writers import write_netcdf
     from .pipeline import diagnose
 
     say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
@@ -135,7 +136,7 @@ def _run_diagnose(args) -> int:
         basins = world_basins(winds)
     say("computing stress, curl, Ekman and Sverdrup transports")
     res = diagnose(winds, drag=args.drag, basins=basins, **kw)
-    from ._progress import progress
+    from .progress import progress
 
     with progress(enabled=not (args.no_progress or args.quiet)):
         res = res.compute()
@@ -144,7 +145,7 @@ def _run_diagnose(args) -> int:
     say(f"wrote {path}")
     _summary(res, say)
     if not args.no_figures:
-        from .plotting import save_standard_figures
+        from .plotting.figures import save_standard_figures
 
         for p in save_standard_figures(res, out):
             say(f"wrote {p}")

@@ -11,9 +11,9 @@ import warnings
 import xarray as xr
 
 from . import constants
-from .ekman import DEFAULT_EQUATORIAL_BAND, ekman
-from .stress import wind_stress
-from .sverdrup import sverdrup
+from .physics.ekman import DEFAULT_EQUATORIAL_BAND, ekman
+from .physics.stress import wind_stress
+from .physics.sverdrup import sverdrup
 
 __all__ = ["diagnose"]
 
@@ -50,12 +50,12 @@ def diagnose(
         From :func:`~sverdrup_kit.open_winds` (``u``, ``v``, optionally ``wind_speed``) or
         :func:`~sverdrup_kit.open_stress` (``taux``, ``tauy``), with or without ``time``.
     drag, air_density
-        Passed to :func:`~sverdrup_kit.stress.wind_stress` (ignored when stress is given).
+        Passed to :func:`~sverdrup_kit.physics.stress.wind_stress` (ignored when stress is given).
     use_speed : bool, optional
         Use the scalar-mean ``wind_speed`` in the bulk formula when the data carry it (the
         better choice for monthly climatologies).
     basins, ocean_mask, rho0, equatorial_band
-        Passed to :func:`~sverdrup_kit.sverdrup.sverdrup` and :func:`~sverdrup_kit.ekman.ekman`.
+        Passed to :func:`~sverdrup_kit.physics.sverdrup.sverdrup` and :func:`~sverdrup_kit.physics.ekman.ekman`.
 
     Returns
     -------

@@ -509,9 +509,9 @@ def world_basins(world: xr.Dataset | None = None) -> xr.DataArray:
 
     The connected ocean regions that :func:`sverdrup_kit.basin_mask` finds, each named after
     the landmark of :data:`BASIN_LANDMARKS` it contains; pass the result as ``basins=`` to
-    :func:`sverdrup_kit.sverdrup` or :func:`sverdrup_kit.diagnose`.
+    :func:`sverdrup_kit.physics.sverdrup` or :func:`sverdrup_kit.diagnose`.
     """
-    from .basins import basin_mask
+    from .geometry.basins import basin_mask
 
     world = load_world() if world is None else world
     ids = basin_mask(world["ocean_mask"].astype(bool))

@@ -16,7 +16,7 @@ import numpy as np
 import pytest
 import xarray as xr
 
-from sverdrup_kit import _progress
+from sverdrup_kit import progress as _progress
 
 # Kernels work field by field and row by row, so chunked, in-memory and distributed runs agree
 # to round-off; only time means (diagnose) are summed in another order (derived from the
@@ -41,7 +41,7 @@ class CountingScheduler:
 
 @pytest.fixture(scope="module")
 def world():
-    from sverdrup_kit.stress import wind_stress
+    from sverdrup_kit.physics.stress import wind_stress
     from sverdrup_kit.synthetic import load_world
 
     w = load_world().load()
@@ -59,7 +59,7 @@ def world():
 
 
 def _wind_stress(d):
-    from sverdrup_kit.stress import wind_stress
+    from sverdrup_kit.physics.stress import wind_stress
 
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -67,31 +67,31 @@ def _wind_stress(d):
 
 
 def _drag_coefficient(d):
-    from sverdrup_kit.stress import drag_coefficient
+    from sverdrup_kit.physics.stress import drag_coefficient
 
     return drag_coefficient(np.hypot(d["u"], d["v"]).assign_attrs(units="m s-1"))
 
 
 def _wind_stress_curl(d):
-    from sverdrup_kit.operators import wind_stress_curl
+    from sverdrup_kit.physics.operators import wind_stress_curl
 
     return wind_stress_curl(d["taux"], d["tauy"])
 
 
 def _curl_on_sphere(d):
-    from sverdrup_kit.operators import curl_on_sphere
+    from sverdrup_kit.physics.operators import curl_on_sphere
 
     return curl_on_sphere(d["taux"], d["tauy"])
 
 
 def _ekman(d):
-    from sverdrup_kit.ekman import ekman
+    from sverdrup_kit.physics.ekman import ekman
 
     return ekman(d["taux"], d["tauy"])
 
 
 def _sverdrup(d):
-    from sverdrup_kit.sverdrup import sverdrup
+    from sverdrup_kit.physics.sverdrup import sverdrup
 
     return sverdrup(d["taux"], d["tauy"], ocean_mask=d["mask"])
 
@@ -196,7 +196,7 @@ def test_distributed_equals_in_memory(world, in_memory, cluster, name):
 def test_time_mean_of_lazy_curl_streams(world):
     # A reduction over time of a lazy result is computed block by block: the graph keeps one
     # task per time chunk for the curl and reduces them pairwise (no task holds the record).
-    from sverdrup_kit.operators import wind_stress_curl
+    from sverdrup_kit.physics.operators import wind_stress_curl
 
     d = _chunk(world, {"time": 1})
     curl = wind_stress_curl(d["taux"], d["tauy"])

@@ -10,7 +10,7 @@ import xarray as xr
 from scipy import ndimage, special, stats
 
 from sverdrup_kit import synthetic
-from sverdrup_kit.operators import wind_stress_curl
+from sverdrup_kit.physics.operators import wind_stress_curl
 
 # Coefficients as documented in the module docstring of sverdrup_kit.synthetic, written out
 # again here so that a silent change of the generator shows up as a failure.

@@ -1,0 +1,80 @@
+"""The one switch between the NumPy kernels and their compiled twins.
+
+Every kernel the wrappers call goes through here. The compiled twins (:mod:`.jit`) are imported
+only on the first call, so importing :mod:`sverdrup_kit` does not import numba; setting
+``SVERDRUP_KIT_JIT=0`` sends every call through the NumPy statement of the method.
+Imports run one way: dispatch -> (curl, scan, jit) -> stencil.
+"""
+
+from __future__ import annotations
+
+import os
+
+from .curl import curl_kernel_numpy
+from .scan import fill_from_neighbours_numpy, westward_scan_numpy
+
+#: Setting this environment variable to 0 sends every kernel through the NumPy reference path.
+JIT_ENV = "SVERDRUP_KIT_JIT"
+
+
+def jit_enabled() -> bool:
+    """Whether the compiled kernels are used (``SVERDRUP_KIT_JIT`` unset or not ``0``)."""
+    return os.environ.get(JIT_ENV, "1").strip().lower() not in {"0", "false", "no", "off"}
+
+
+def curl_kernel(taux, tauy, phi, lam, *, periodic: bool, radius: float, return_isolated=False):
+    r"""Vertical component of the curl of a horizontal vector field on the sphere.
+
+    .. math:: \hat k\cdot\nabla\times\boldsymbol\tau = \frac{1}{R\cos\phi}
+       \left(\frac{\partial\tau_y}{\partial\lambda} - \frac{\partial(\tau_x\cos\phi)}{\partial\phi}\right)
+
+    Parameters
+    ----------
+    taux, tauy : ndarray (..., ny, nx)
+        Eastward and northward components, NaN on land (a cell is ocean where both are finite).
+    phi, lam : ndarray (ny,), (nx,)
+        Latitude and longitude in radians, strictly increasing.
+    periodic : bool
+        Whether longitude wraps around.
+    radius : float
+        Sphere radius in m.
+    return_isolated : bool, optional
+        Also return how many derivatives (cells times directions) were taken as zero because
+        the cell had no ocean neighbour in that direction.
+
+    Notes
+    -----
+    Runs the compiled twin in :mod:`sverdrup_kit._compiled.jit` (same numbers, one pass over memory)
+    unless the environment variable ``SVERDRUP_KIT_JIT`` is ``0``; then
+    :func:`curl_kernel_numpy`, which states the method in plain NumPy.
+    """
+    from . import jit
+
+    kernel = jit.curl if jit_enabled() else curl_kernel_numpy
+    return kernel(
+        taux, tauy, phi, lam, periodic=periodic, radius=radius, return_isolated=return_isolated
+    )
+
+
+def fill_from_neighbours(a, *, target, periodic):
+    """Fill missing values of ``a`` inside ``target``: see :func:`fill_from_neighbours_numpy`.
+
+    Runs the compiled twin in :mod:`sverdrup_kit._compiled.jit` (the same numbers) unless the
+    environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    from . import jit
+
+    kernel = jit.fill_from_neighbours if jit_enabled() else fill_from_neighbours_numpy
+    return kernel(a, target=target, periodic=periodic)
+
+
+def westward_scan(v, dx, cells, run_starts):
+    """Westward integral along runs: see :func:`westward_scan_numpy`.
+
+    Runs the compiled twin in :mod:`sverdrup_kit._compiled.jit` (the same numbers to round-off: it
+    sums each run from zero) unless the environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    from . import jit
+
+    kernel = jit.westward_scan if jit_enabled() else westward_scan_numpy
+    return kernel(v, dx, cells, run_starts)

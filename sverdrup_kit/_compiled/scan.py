@@ -1,0 +1,153 @@
+"""Kernels of the westward Sverdrup integral: plain NumPy, float64, NaN is land.
+
+The geometry (which cells form which run, which runs form which basin row) is worked out once
+per call in :mod:`sverdrup_kit.geometry.basins`; these kernels only do the per-time-step arithmetic and
+broadcast over any leading axes. :func:`westward_scan` has a signature that a compiled version
+can take over unchanged.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+
+def fill_from_neighbours_numpy(a, *, target, periodic):
+    """Fill missing values of ``a`` inside ``target`` by repeated nearest-ocean averaging.
+
+    Parameters
+    ----------
+    a : ndarray (..., ny, nx)
+        Field, NaN where missing.
+    target : ndarray of bool (ny, nx)
+        Cells that must end with a value (the ocean, small islands included). Values outside
+        are set to NaN and never used.
+    periodic : bool
+        Longitude wraps.
+
+    Returns
+    -------
+    ndarray (..., ny, nx), float64
+        Each pass gives every still-missing target cell the mean of its valued face neighbours
+        inside ``target``; passes repeat until nothing changes. A target region with no value
+        at all (a basin wholly missing in one time step) stays NaN.
+    """
+    out = np.where(target, np.asarray(a, dtype=np.float64), np.nan)
+    while True:
+        missing = target & np.isnan(out)
+        if not missing.any():
+            return out
+        total = np.zeros_like(out)
+        count = np.zeros_like(out)
+        for axis, k in ((-1, 1), (-1, -1), (-2, 1), (-2, -1)):
+            nb = np.roll(out, k, axis=axis)
+            if axis == -2:
+                edge = (0 if k == 1 else -1)
+                nb[..., edge, :] = np.nan
+            elif not periodic:
+                nb[..., :, 0 if k == 1 else -1] = np.nan
+            ok = np.isfinite(nb)
+            total += np.where(ok, nb, 0.0)
+            count += ok
+        fill = missing & (count > 0)
+        if not fill.any():
+            return out
+        out = np.where(fill, total / np.where(count > 0, count, 1.0), out)
+
+
+def westward_scan_numpy(v, dx, cells, run_starts):
+    r"""Integrate ``v`` westward along runs of cells, each from its eastern end.
+
+    Parameters
+    ----------
+    v : ndarray (..., ny, nx), float64
+        Transport per unit width at cell centres, NaN where unknown.
+    dx : ndarray (ny, nx)
+        Zonal cell widths in m.
+    cells : ndarray of int (m,)
+        Flat indices ``j * nx + i`` of the cells of all runs, run after run, each run ordered
+        from its eastern cell to its western cell.
+    run_starts : ndarray of int (n_runs,)
+        Offset of each run's first (eastern) cell in ``cells``, ascending.
+
+    Returns
+    -------
+    psi : ndarray (..., ny, nx)
+        At cell centres, :math:`\psi_i = -\left(\sum_{j\ \mathrm{east\ of}\ i} v_j\,dx_j +
+        v_i\,dx_i/2\right)` within each run (units of ``v`` times m), NaN outside runs and
+        west of (and at) any NaN cell of a run.
+    totals : ndarray (..., n_runs)
+        :math:`\sum v_i\,dx_i` over each run, NaN when any cell of the run is NaN.
+    """
+    v = np.asarray(v, dtype=np.float64)
+    lead = v.shape[:-2]
+    ny, nx = v.shape[-2:]
+    psi = np.full(lead + (ny * nx,), np.nan)
+    n_runs = run_starts.size
+    if n_runs == 0:
+        return psi.reshape(v.shape), np.full(lead + (0,), np.nan)
+    flux = v.reshape(lead + (ny * nx,))[..., cells] * dx.reshape(-1)[cells]
+    bad = np.isnan(flux)
+    f0 = np.where(bad, 0.0, flux)
+    lengths = np.diff(np.append(run_starts, cells.size))
+    run_of = np.repeat(np.arange(n_runs), lengths)
+    csum = np.cumsum(f0, axis=-1)
+    cbad = np.cumsum(bad, axis=-1)
+    before = np.concatenate([np.zeros(lead + (1,)), csum[..., :-1]], axis=-1)[..., run_starts]
+    bad_before = np.concatenate(
+        [np.zeros(lead + (1,), dtype=cbad.dtype), cbad[..., :-1]], axis=-1
+    )[..., run_starts]
+    inclusive = csum - before[..., run_of]
+    nbad = cbad - bad_before[..., run_of]
+    psi[..., cells] = np.where(nbad > 0, np.nan, -(inclusive - 0.5 * f0))
+    totals = np.add.reduceat(f0, run_starts, axis=-1)
+    nbad_run = np.add.reduceat(bad.astype(np.int64), run_starts, axis=-1)
+    totals = np.where(nbad_run > 0, np.nan, totals)
+    return psi.reshape(v.shape), totals
+
+
+def sum_groups(totals, group_runs, group_starts, group_slot, n_slots):
+    """Add run totals (..., n_runs) into slots (..., n_slots); NaN where no group or a NaN run."""
+    lead = totals.shape[:-1]
+    out = np.full(lead + (n_slots,), np.nan)
+    if group_starts.size:
+        out[..., group_slot] = np.add.reduceat(totals[..., group_runs], group_starts, axis=-1)
+    return out
+
+
+def sign_changes(t, lat, valid, *, max_crossings):
+    """Latitudes where ``t`` changes sign between neighbouring valid rows.
+
+    Parameters
+    ----------
+    t : ndarray (..., nb, ny)
+        Transport by basin and row, NaN where unknown.
+    lat : ndarray (ny,)
+        Ascending row latitudes.
+    valid : ndarray of bool (nb, ny)
+        Rows that may be used; a crossing needs two neighbouring valid rows.
+    max_crossings : int
+        Length of the output's last axis.
+
+    Returns
+    -------
+    crossings : ndarray (..., nb, max_crossings)
+        Latitudes by linear interpolation between the two rows, south to north, NaN-padded.
+    count : ndarray (..., nb), int64
+        Number of sign changes found (may exceed ``max_crossings``).
+    """
+    t = np.asarray(t, dtype=np.float64)
+    a, b = t[..., :-1], t[..., 1:]
+    pair = valid[:, :-1] & valid[:, 1:]
+    with np.errstate(invalid="ignore"):
+        hit = pair & (a * b < 0)
+        frac = a / (a - b)
+    y = lat[:-1] + frac * np.diff(lat)
+    y = np.where(hit, y, np.nan)
+    count = hit.sum(axis=-1).astype(np.int64)
+    # Sorting puts NaN last, so the found latitudes come first in ascending order.
+    y = np.sort(y, axis=-1)
+    k = y.shape[-1]
+    if k >= max_crossings:
+        return y[..., :max_crossings], count
+    pad = np.full(y.shape[:-1] + (max_crossings - k,), np.nan)
+    return np.concatenate([y, pad], axis=-1), count

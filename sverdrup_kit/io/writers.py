@@ -1,0 +1,107 @@
+"""Writing results to CF-compliant NetCDF, whole or not at all."""
+
+from __future__ import annotations
+
+import datetime as _dt
+import os
+import tempfile
+from pathlib import Path
+
+import numpy as np
+import xarray as xr
+
+__all__ = ["write_netcdf", "PURPOSE"]
+
+#: What the results are for, written into every file.
+PURPOSE = (
+    "Climatological diagnostics of wind-driven circulation for research. Not a forecast or "
+    "nowcast of currents; not for navigation or marine operations."
+)
+
+
+def _prepare(ds: xr.Dataset) -> xr.Dataset:
+    from .. import __version__
+
+    out = ds.copy()
+    for name in list(out.variables):
+        if out[name].dtype == bool:
+            # NetCDF has no boolean type: store 0/1 and say so the CF way.
+            out[name] = out[name].astype("int8").assign_attrs(
+                out[name].attrs, flag_values=np.array([0, 1], "int8"), flag_meanings="false true")
+        for key, value in list(out[name].attrs.items()):
+            if isinstance(value, (bool, np.bool_)):
+                out[name].attrs[key] = int(value)
+            elif value is None:
+                del out[name].attrs[key]
+    stamp = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+    history = f"{stamp} written by sverdrup_kit {__version__}"
+    if "history" in ds.attrs:
+        history = f"{history}\n{ds.attrs['history']}"
+    out.attrs = {k: (int(v) if isinstance(v, (bool, np.bool_)) else v)
+                 for k, v in ds.attrs.items() if v is not None}
+    out.attrs.update(Conventions="CF-1.8", history=history, purpose=PURPOSE)
+    return out
+
+
+def _compression(var: xr.DataArray) -> dict:
+    """zlib with one whole horizontal field per compressed chunk.
+
+    netCDF-C's default chunks span many time steps, so a lazy write of a long record, one dask
+    block at a time, recompresses partly filled chunks over and over (benchmarks/streaming.py:
+    15.6 s for a year of daily 1-degree fields, 234 s for four years).
+    """
+    enc = {"zlib": True, "complevel": 4}
+    if var.ndim >= 2 and var.size > 0:
+        enc["chunksizes"] = (1,) * (var.ndim - 2) + tuple(var.shape[-2:])
+    return enc
+
+
+def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = True):
+    """Write ``ds`` to ``path`` as CF-1.8 NetCDF-4, atomically.
+
+    The file is written under a temporary name in the same folder and renamed into place only
+    when complete, so a failure never leaves a half-written file. Global attributes record the
+    conventions, the history and what the results are for. ``ds`` is not modified.
+
+    Parameters
+    ----------
+    ds : xarray.Dataset
+        Results; dask-backed variables are computed while writing.
+    path : str or path-like
+        Destination ``.nc`` file; its folder must exist.
+    compute : bool, optional
+        Passed to :meth:`xarray.Dataset.to_netcdf`; must be True for the atomic rename.
+    """
+    if not isinstance(ds, xr.Dataset):
+        raise TypeError(
+            f"ds: expected an xarray.Dataset, found {type(ds).__name__}. Fix: wrap a DataArray "
+            "with da.to_dataset()."
+        )
+    path = Path(path)
+    if not path.parent.is_dir():
+        raise FileNotFoundError(
+            f"path: expected a file in an existing folder, found that '{path.parent}' does not "
+            f"exist. Fix: create it first, e.g. os.makedirs('{path.parent}')."
+        )
+    if not compute:
+        raise ValueError("compute: must be True; an atomic write needs the data now.")
+    out = _prepare(ds)
+    encoding = {
+        name: _compression(var)
+        for name, var in out.data_vars.items()
+        if np.issubdtype(var.dtype, np.number)
+    }
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
+    os.close(fd)
+    try:
+        out.to_netcdf(tmp, format="NETCDF4", encoding=encoding)
+        # mkstemp creates the file private; give it the permissions a plain open() would.
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)
+        os.replace(tmp, path)
+    except BaseException:
+        if os.path.exists(tmp):
+            os.remove(tmp)
+        raise
+    return path

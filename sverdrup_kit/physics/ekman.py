@@ -1,0 +1,122 @@
+"""Ekman transport and Ekman pumping from surface wind stress on the sphere."""
+
+from __future__ import annotations
+
+import numpy as np
+import xarray as xr
+
+from .. import constants
+from ..geometry.coords import check_same_grid, require_dataarray
+from ..io.units import to_si
+from ..geometry.grid import SphericalGrid
+from .operators import curl_on_sphere
+
+__all__ = ["ekman", "DEFAULT_EQUATORIAL_BAND"]
+
+#: Half-width in degrees of the band around the equator where f -> 0 and the Ekman (and
+#: Sverdrup) balances are not used (common practice: 2 to 5 degrees).
+DEFAULT_EQUATORIAL_BAND = 3.0
+
+
+def _band_reason(band: float) -> str:
+    return (
+        f"missing within {band:g} degrees of the equator, where f -> 0 and the Ekman balance "
+        "does not hold"
+    )
+
+
+def ekman(
+    taux,
+    tauy,
+    *,
+    rho0: float = constants.RHO0,
+    equatorial_band: float = DEFAULT_EQUATORIAL_BAND,
+    radius: float = constants.EARTH_RADIUS,
+    omega: float = constants.OMEGA,
+) -> xr.Dataset:
+    r"""Ekman volume transport and Ekman pumping velocity.
+
+    Parameters
+    ----------
+    taux, tauy : xarray.DataArray (..., lat, lon)
+        Eastward and northward surface stress in Pa (N m-2 and dyn cm-2 are converted), on the
+        same grid, missing on land. Leading dimensions pass through.
+    rho0 : float, optional
+        Reference sea-water density, kg m-3.
+    equatorial_band : float, optional
+        Half-width in degrees of the band around the equator that is left missing. Must be
+        positive: at the equator f = 0 and the transports are infinite.
+    radius, omega : float, optional
+        Earth radius (m) and rotation rate (rad s-1).
+
+    Returns
+    -------
+    xarray.Dataset
+        ``ekman_eastward_transport``, ``ekman_northward_transport`` (m2 s-1, volume transport
+        per unit width) and ``ekman_pumping`` (m s-1, positive upward), float64, missing on land
+        and within the equatorial band.
+
+    Notes
+    -----
+    .. math::
+        U_E = \frac{\tau_y}{\rho_0 f}, \qquad V_E = -\frac{\tau_x}{\rho_0 f}, \qquad
+        w_E = \hat k\cdot\nabla\times\left(\frac{\boldsymbol\tau}{\rho_0 f}\right)
+            = \frac{\operatorname{curl}\boldsymbol\tau}{\rho_0 f}
+              + \frac{\beta\,\tau_x}{\rho_0 f^2}
+
+    The pumping is computed as the curl of :math:`\boldsymbol\tau/(\rho_0 f)` with the same
+    coast-aware differences as :func:`~sverdrup_kit.physics.operators.wind_stress_curl`, which keeps
+    the beta term. Positive values are upwelling out of the Ekman layer.
+
+    References
+    ----------
+    Ekman, V. W. (1905). On the influence of the earth's rotation on ocean-currents. Ark. Mat.
+    Astron. Fys. 2(11), 1-52.
+    Gill, A. E. (1982). Atmosphere-Ocean Dynamics. Academic Press, section 9.2.
+    """
+    taux = require_dataarray(taux, "taux")
+    tauy = require_dataarray(tauy, "tauy")
+    check_same_grid(taux, tauy, ("taux", "tauy"))
+    if not np.isfinite(equatorial_band) or equatorial_band <= 0:
+        raise ValueError(
+            f"equatorial_band: expected a positive half-width in degrees, found "
+            f"{equatorial_band!r}. Fix: pass e.g. equatorial_band=3.0."
+        )
+    if not rho0 > 0:
+        raise ValueError(f"rho0: expected a positive density in kg m-3, found {rho0!r}.")
+    grid = SphericalGrid.from_data(taux, argname="taux", radius=radius, omega=omega)
+    lay = grid.layout
+    tx = to_si(taux, "stress", argname="taux", default="Pa").astype(np.float64)
+    ty = to_si(tauy, "stress", argname="tauy", default="Pa").astype(np.float64)
+
+    lat = taux[lay.lat_name].astype(np.float64)
+    f = (2.0 * omega * np.sin(np.deg2rad(lat))).where(np.abs(lat) >= equatorial_band)
+    ue = ty / (rho0 * f)
+    ve = -tx / (rho0 * f)
+    pump = curl_on_sphere(tx / (rho0 * f), ty / (rho0 * f), grid=grid, names=("taux", "tauy"))
+    reason = _band_reason(equatorial_band)
+    common = dict(rho0=rho0, equatorial_band=equatorial_band, comment=reason)
+    out = xr.Dataset(
+        {
+            "ekman_eastward_transport": ue.assign_attrs(
+                long_name="eastward Ekman volume transport per unit width",
+                units="m2 s-1",
+                **common,
+            ),
+            "ekman_northward_transport": ve.assign_attrs(
+                long_name="northward Ekman volume transport per unit width",
+                units="m2 s-1",
+                **common,
+            ),
+            "ekman_pumping": pump.assign_attrs(
+                long_name="Ekman pumping velocity (positive upward)",
+                units="m s-1",
+                **common,
+            ),
+        }
+    )
+    return out.assign_attrs(
+        title="Ekman transport and pumping",
+        equatorial_band=equatorial_band,
+        rho0=rho0,
+    )

@@ -1,0 +1,434 @@
+r"""Sverdrup transport integrated westward from eastern coasts, basin by basin.
+
+The geometry of the integral (basins, islands, coasts, marginal seas, rows left empty) comes
+from :mod:`sverdrup_kit.geometry.basins` and is worked out once per call; each time step costs a gap
+fill, the curl (:func:`~sverdrup_kit.physics.operators.curl_on_sphere`) and the scan
+(:mod:`sverdrup_kit._compiled.scan`).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import xarray as xr
+
+from .. import constants
+from .._apply import apply_grid_kernel, whole_fields
+from ..geometry.coords import (
+    GridLayout,
+    check_same_grid,
+    from_canonical,
+    require_dataarray,
+    to_canonical,
+)
+from .._compiled.dispatch import fill_from_neighbours, westward_scan
+from .._compiled.scan import sign_changes, sum_groups
+from ..io.units import to_si
+from ..geometry.basins import (
+    CELL_CLASS,
+    CONTINENT_MIN_AREA,
+    ISLAND_MIN_AREA,
+    MIN_WIDTH,
+    OCEAN,
+    ROW_STATUS,
+    SMALL_ISLAND,
+    _as_bool,
+    _mask_on_grid,
+    assign_basins,
+    basin_id_attrs,
+    classify_land,
+    plan_rows,
+)
+from .ekman import DEFAULT_EQUATORIAL_BAND
+from ..geometry.grid import SphericalGrid
+from .operators import curl_on_sphere
+
+__all__ = ["sverdrup"]
+
+SV_UNITS = "1e6 m3 s-1"
+
+
+def _fill_kernel(tx, ty, *, target, keep_missing, periodic):
+    """Fill stress gaps inside ``target`` (both components missing where either is)."""
+    tx = np.asarray(tx, dtype=np.float64)
+    ty = np.asarray(ty, dtype=np.float64)
+    missing = np.isnan(tx) | np.isnan(ty)
+    tx = np.where(missing, np.nan, tx)
+    ty = np.where(missing, np.nan, ty)
+    fx = fill_from_neighbours(tx, target=target, periodic=periodic)
+    fy = fill_from_neighbours(ty, target=target, periodic=periodic)
+    stay = missing & keep_missing
+    return np.where(stay, np.nan, fx), np.where(stay, np.nan, fy)
+
+
+def _scan_kernel(v, *, dx, cells, run_starts, group_runs, group_starts, group_slot, n_basins):
+    psi, totals = westward_scan(v, dx, cells, run_starts)
+    ny = v.shape[-2]
+    t = sum_groups(totals, group_runs, group_starts, group_slot, n_basins * ny)
+    t = t.reshape(t.shape[:-1] + (n_basins, ny))
+    return psi / constants.SVERDRUP, t / constants.SVERDRUP
+
+
+def _check_positive(value, name, *, allow_zero=False, fix=""):
+    ok = np.isfinite(value) and (value >= 0 if allow_zero else value > 0)
+    if not ok:
+        what = "a finite number >= 0" if allow_zero else "a finite positive number"
+        raise ValueError(f"{name}: expected {what}, found {value!r}. {fix}".rstrip())
+
+
+def _ocean_from(taux, tauy, ocean_mask, layout):
+    if ocean_mask is not None:
+        return _as_bool(_mask_on_grid(ocean_mask, taux, layout, "ocean_mask"), "ocean_mask")
+    lat, lon = layout.lat_name, layout.lon_name
+    seen = taux.notnull() & tauy.notnull()
+    lead = [d for d in seen.dims if d not in (lat, lon)]
+    if lead:
+        seen = seen.any(lead)
+    return np.asarray(to_canonical(seen, layout).transpose(lat, lon).values, dtype=bool)
+
+
+def sverdrup(
+    taux,
+    tauy,
+    *,
+    ocean_mask=None,
+    basins=None,
+    rho0: float = constants.RHO0,
+    equatorial_band: float = DEFAULT_EQUATORIAL_BAND,
+    island_min_area: float = ISLAND_MIN_AREA,
+    continent_min_area: float = CONTINENT_MIN_AREA,
+    min_width: float = MIN_WIDTH,
+    fill_gaps: bool = True,
+    max_crossings: int = 8,
+    radius: float = constants.EARTH_RADIUS,
+    omega: float = constants.OMEGA,
+) -> xr.Dataset:
+    r"""Sverdrup transport from wind stress, integrated westward from each eastern coast.
+
+    Parameters
+    ----------
+    taux, tauy : xarray.DataArray (..., lat, lon)
+        Eastward and northward surface stress in Pa (N m-2, dyn cm-2 converted; no units
+        attribute is read as Pa), on the same grid, missing on land. Any latitude order and
+        longitude convention; leading dimensions (time, member, ...) pass through.
+    ocean_mask : xarray.DataArray (lat, lon), optional
+        True (or 1) for ocean on the grid of ``taux``, e.g. from topography. Without it the
+        ocean is every cell where the stress is present in at least one step of the leading
+        dimensions; for dask-backed stress that needs one pass over the data at call time, so
+        pass ``ocean_mask`` to keep the call fully lazy.
+    basins : None, "earth", xarray.DataArray or dict, optional
+        ``None``: connected ocean regions of the mask (faces only, longitude wrapping on a
+        global grid), named ``basin_0``, ``basin_1``, ... by decreasing area; water bodies
+        smaller than ``island_min_area`` are left out. Where two oceans larger than
+        :data:`~sverdrup_kit.geometry.basins.SEPARATE_OCEAN_AREA` (1e7 km2) meet beyond a continent's
+        tip they become separate basins, and the rows beyond the tip a third; smaller branches
+        (gulfs) stay with the ocean they open into. Oceans joined through an archipelago (the
+        real Earth's Indonesian seas) stay one basin: use ``"earth"`` there.
+        ``"earth"``: the Atlantic, Pacific and Indian Oceans of the real Earth, both
+        hemispheres, cut along :data:`~sverdrup_kit.geometry.basins.EARTH_DIVIDING_LINES`: 20E south of
+        Cape Agulhas, 147E south of Tasmania and across Bass Strait, 68W south of Cape Horn
+        and 70W across the Strait of Magellan, a line through the Indonesian passages from
+        the Strait of Malacca along the Lesser Sunda Islands to near Darwin, and along Central
+        America (Tehuantepec, Panama); rows ending on the lines that stand for land or a
+        shallow strait (:data:`~sverdrup_kit.geometry.basins.EARTH_COASTAL_LINES`) end on a coast,
+        rows ending on the open-ocean lines have none. The Arctic and Nordic Seas north of
+        65.5N, the Mediterranean and the Black Sea belong to none.
+        A DataArray of basin numbers (-1 or NaN outside; names from CF
+        ``flag_values``/``flag_meanings`` when present, so the ``basin_id`` of an earlier
+        result can be passed back). A dict name -> boolean DataArray (masks must not overlap)
+        or name -> list of (lon, lat) polygon vertices in degrees (a cell belongs to the first
+        polygon that contains its centre).
+    rho0 : float, optional
+        Reference sea-water density, kg m-3.
+    equatorial_band : float, optional
+        Half-width in degrees of the band around the equator left empty (f -> 0), the same
+        default as :func:`~sverdrup_kit.physics.ekman.ekman`.
+    island_min_area : float, optional
+        km2. Land bodies smaller than this are *small islands*: the integral runs across them
+        with the stress filled in from the surrounding ocean (nearest-ocean averaging), so
+        they add the transport of the interpolated wind over their width. Larger land bodies
+        end a run; a *large island* (below ``continent_min_area``) starts a new run at its
+        western coast, and that run counts in the basin's interior transport.
+    continent_min_area : float, optional
+        km2. Land bodies at least this large, and land cut by the edge of a regional grid,
+        are continents: a run of the same basin row that is separated from the widest run by
+        a continent (a gulf behind a peninsula, an enclosed sea) is a *marginal sea*, given
+        its own streamfunction but not counted.
+    min_width : float, optional
+        km. Rows whose counted ocean is narrower are left empty (``too_narrow``).
+    fill_gaps : bool, optional
+        Fill stress missing in single time steps inside the ocean (ship-based climatologies
+        have unobserved cells) and in ocean cells of ``ocean_mask`` where the stress has no
+        value (a topographic mask on a coarse stress grid) by nearest-ocean averaging before
+        the curl. With ``False`` such gaps stay missing and spoil the rows they lie on.
+    max_crossings : int, optional
+        Length of the ``crossing`` dimension of ``gyre_boundary_lat``.
+    radius, omega : float, optional
+        Earth radius (m) and rotation rate (rad s-1).
+
+    Returns
+    -------
+    xarray.Dataset
+        On the input grid and order, float64, lazy where the input is:
+
+        - ``wind_stress_curl`` (..., lat, lon), N m-3, of the gap-filled stress;
+        - ``meridional_transport`` (..., lat, lon), m2 s-1: :math:`V`, also on small islands;
+        - ``streamfunction`` (..., lat, lon), 1e6 m3 s-1, zero at each eastern coast;
+        - ``interior_transport`` (..., basin, lat), 1e6 m3 s-1, positive northward;
+        - ``boundary_current_transport`` (..., basin, lat) = ``-interior_transport``;
+        - ``gyre_boundary_lat`` (..., basin, crossing) and ``gyre_boundary_count``
+          (..., basin): latitudes where the interior transport changes sign;
+        - ``basin_id`` (lat, lon), ``integration_class`` (lat, lon), ``row_status``
+          (basin, lat), ``eastern_boundary_lon`` and ``western_boundary_lon`` (basin, lat).
+
+        Rows left empty are NaN, with the reason in ``row_status`` (CF flags) and in the attrs.
+
+    Notes
+    -----
+    The Sverdrup relation for the depth-integrated meridional transport per unit width,
+
+    .. math:: \beta V = \frac{\operatorname{curl}\boldsymbol\tau}{\rho_0},
+       \qquad \beta = \frac{2\Omega\cos\phi}{R},
+
+    is integrated westward from the eastern coast :math:`x_E`, where the zonal flow into the
+    coast vanishes:
+
+    .. math:: \psi(x) = -\int_x^{x_E} V\,dx', \qquad V = \partial\psi/\partial x.
+
+    Discretisation: :math:`V_i` lives at cell centres; the interior transport of a run is the
+    midpoint sum :math:`T = \sum_i V_i\,\Delta x_i`, exact when V is constant in x. The
+    streamfunction lives at cell centres too, with a half-cell correction,
+    :math:`\psi_i = -\left(\sum_{j\ \mathrm{east\ of}\ i} V_j\Delta x_j + V_i\Delta x_i/2
+    \right)`, so that its value extended to the eastern face of the eastern cell,
+    :math:`\psi_e + V_e\Delta x_e/2`, is zero, and its value at the western face of the
+    western cell, :math:`\psi_w - V_w\Delta x_w/2`, is :math:`-T` of that run. A basin row
+    made of several runs (split by large islands) restarts at zero on each run's eastern
+    coast; its interior transport is the sum over its runs, and the western boundary current
+    carries it back: ``boundary_current_transport = -interior_transport``.
+
+    In each basin row the widest run is the open basin; runs joined to it across large
+    islands only are counted with it, runs cut off by a continent are marginal seas. A row is
+    left empty when it lies in the equatorial band, when its ocean wraps all the way round or
+    its eastern end opens on another basin (no eastern coast), when its western end opens on
+    another basin (no western coast), or when it is narrower than ``min_width``.
+
+    Examples
+    --------
+    An invented closed basin between 0E and 60E, 15N to 55N, under easterlies that turn to
+    westerlies:
+
+    >>> import numpy as np, xarray as xr
+    >>> lat, lon = np.arange(-89.0, 90.0, 2.0), np.arange(1.0, 360.0, 2.0)
+    >>> ocean = (lon < 60) & (lat[:, None] > 15) & (lat[:, None] < 55)
+    >>> tau = -0.1 * np.cos(np.deg2rad(4.5 * (lat[:, None] - 15)))
+    >>> taux = xr.DataArray(np.where(ocean, tau, np.nan), coords={"lat": lat, "lon": lon},
+    ...                     dims=("lat", "lon"), attrs={"units": "Pa"})
+    >>> ds = sverdrup(taux, 0 * taux)
+    >>> ds.interior_transport.sel(basin="basin_0", lat=31.0).round(1).item()
+    -19.8
+    >>> ds.gyre_boundary_lat.sel(basin="basin_0", crossing=0).round(1).item()
+    51.5
+
+    References
+    ----------
+    Sverdrup, H. U. (1947). Wind-driven currents in a baroclinic ocean; with application to
+    the equatorial currents of the eastern Pacific. Proc. Natl. Acad. Sci. USA 33, 318-326.
+    Godfrey, J. S. (1989). A Sverdrup model of the depth-integrated flow for the world ocean
+    allowing for island circulations. Geophys. Astrophys. Fluid Dyn. 45, 89-112.
+    """
+    taux = require_dataarray(taux, "taux")
+    tauy = require_dataarray(tauy, "tauy")
+    check_same_grid(taux, tauy, ("taux", "tauy"))
+    _check_positive(rho0, "rho0", fix="Fix: e.g. rho0=1025.0 (kg m-3).")
+    _check_positive(equatorial_band, "equatorial_band", allow_zero=True,
+                    fix="Fix: a half-width in degrees, e.g. 3.0.")
+    _check_positive(island_min_area, "island_min_area", allow_zero=True,
+                    fix="Fix: an area in km2, e.g. 1e5; 0 treats every island as large.")
+    _check_positive(min_width, "min_width", allow_zero=True, fix="Fix: a width in km.")
+    if not (np.isfinite(continent_min_area) and continent_min_area >= island_min_area):
+        raise ValueError(
+            f"continent_min_area: expected a number of km2 >= island_min_area "
+            f"({island_min_area:g}), found {continent_min_area!r}. Fix: e.g. 5e6."
+        )
+    if not (isinstance(max_crossings, (int, np.integer)) and max_crossings >= 1):
+        raise ValueError(
+            f"max_crossings: expected a positive integer, found {max_crossings!r}. Fix: e.g. 8."
+        )
+
+    grid0 = SphericalGrid.from_data(taux, argname="taux", radius=radius, omega=omega)
+    lay = grid0.layout
+    lat, lon = lay.lat_name, lay.lon_name
+    tx = to_canonical(to_si(taux, "stress", argname="taux", default="Pa"), lay)
+    ty = to_canonical(to_si(tauy, "stress", argname="tauy", default="Pa"), lay)
+    # Everything below works on the canonical grid, whose layout is the identity.
+    ident = GridLayout(lat, lon, lay.lat, lay.lon, np.arange(lay.lat.size),
+                       np.arange(lay.lon.size), lay.periodic)
+    grid = SphericalGrid(lay.lat, lay.lon, lay.periodic, radius, omega, ident)
+
+    # Geometry: once per call, from grid and mask alone.
+    ocean = _ocean_from(taux, tauy, ocean_mask, lay)
+    cls, land_labels = classify_land(
+        ocean, grid, island_min_area=island_min_area, continent_min_area=continent_min_area
+    )
+    water = cls <= SMALL_ISLAND
+    bid, names, coast_e = assign_basins(
+        basins, water, grid, lay, taux, cls, land_labels, min_area=island_min_area
+    )
+    nb = len(names)
+    band = grid.equatorial_band(equatorial_band) if equatorial_band > 0 else np.zeros(
+        grid.lat.size, dtype=bool)
+    plan = plan_rows(bid, cls, land_labels, grid, n_basins=nb, equatorial=band,
+                     min_width_km=min_width, coast_e=coast_e)
+
+    # Per time step: fill, curl, V, scan.
+    keep_missing = (cls == OCEAN) if not fill_gaps else np.zeros_like(water)
+    fx, fy = apply_grid_kernel(
+        _fill_kernel, tx, ty, dims=(lat, lon), n_out=2,
+        kwargs=dict(target=water, keep_missing=keep_missing, periodic=grid.periodic),
+    )
+    curl = curl_on_sphere(fx, fy, grid=grid, names=("taux", "tauy"))
+    beta = xr.DataArray(grid.beta, dims=(lat,), coords={lat: tx[lat]})
+    not_band = xr.DataArray(~band, dims=(lat,), coords={lat: tx[lat]})
+    v = (curl / (rho0 * beta)).where(not_band)
+    psi, transport = xr.apply_ufunc(
+        _scan_kernel,
+        whole_fields(v, (lat, lon)),
+        input_core_dims=[[lat, lon]],
+        output_core_dims=[[lat, lon], ["basin", lat]],
+        dask="parallelized",
+        output_dtypes=[np.float64, np.float64],
+        dask_gufunc_kwargs={"output_sizes": {"basin": nb}},
+        kwargs=dict(dx=grid.dx, cells=plan.cells, run_starts=plan.run_starts,
+                    group_runs=plan.group_runs, group_starts=plan.group_starts,
+                    group_slot=plan.group_slot, n_basins=nb),
+    )
+    order = [d for d in v.dims]
+    psi = psi.transpose(*order)
+    lead = [d for d in order if d not in (lat, lon)]
+    transport = transport.transpose(*lead, "basin", lat)
+    crossings, count = xr.apply_ufunc(
+        sign_changes,
+        transport,
+        input_core_dims=[["basin", lat]],
+        output_core_dims=[["basin", "crossing"], ["basin"]],
+        dask="parallelized",
+        output_dtypes=[np.float64, np.int64],
+        dask_gufunc_kwargs={"output_sizes": {"crossing": max_crossings}},
+        kwargs=dict(lat=grid.lat, valid=plan.row_status == 0, max_crossings=max_crossings),
+    )
+
+    ds = _assemble(
+        curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
+        taux, rho0=rho0, band=equatorial_band, island_min_area=island_min_area,
+        continent_min_area=continent_min_area, min_width=min_width, fill_gaps=fill_gaps,
+        given_mask=ocean_mask is not None,
+    )
+    return ds
+
+
+def _flag_attrs(table):
+    return {
+        "flag_values": np.array(list(table), dtype=np.int8),
+        "flag_meanings": " ".join(name for name, _ in table.values()),
+        "comment": "; ".join(f"{k} {name}: {why}" for k, (name, why) in table.items()),
+    }
+
+
+def _to_user_lon(x, original_lon):
+    lo = float(np.min(original_lon))
+    d = float(np.min(np.abs(np.diff(np.asarray(original_lon, float))))) if np.size(
+        original_lon) > 1 else 0.0
+    base = lo - d / 2.0
+    return np.where(np.isfinite(x), base + np.mod(x - base, 360.0), np.nan)
+
+
+def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
+              original, *, rho0, band, island_min_area, continent_min_area, min_width,
+              fill_gaps, given_mask):
+    lat, lon = lay.lat_name, lay.lon_name
+    hw = (lat, lon)
+    basin = xr.DataArray(np.array(names, dtype=object), dims=("basin",), name="basin",
+                         attrs={"long_name": "ocean basin"})
+    empty = (
+        "rows left empty are NaN; row_status gives the reason: "
+        + "; ".join(f"{k} {n}" for k, (n, _) in ROW_STATUS.items() if k)
+    )
+    user_lon = original[lon].values
+    ds = xr.Dataset(
+        {
+            "wind_stress_curl": curl.assign_attrs(
+                long_name="wind stress curl", units="N m-3",
+                comment="vertical component of the curl of the surface stress on the sphere, "
+                "after gaps and small islands were filled by nearest-ocean averaging",
+            ),
+            "meridional_transport": v.assign_attrs(
+                long_name="Sverdrup meridional transport per unit width", units="m2 s-1",
+                comment="depth-integrated, V = curl(tau) / (rho0 beta); missing on land and in "
+                f"the equatorial band |lat| < {band:g} degrees; present on small islands, "
+                "where the stress is interpolated",
+            ),
+            "streamfunction": psi.assign_attrs(
+                long_name="Sverdrup transport streamfunction", units=SV_UNITS,
+                comment="at cell centres, psi_i = -(sum of V dx over the cells east of i in its "
+                "run + V_i dx_i / 2): zero at the eastern face of each run (an eastern coast), "
+                "minus the run's transport at its western face; V = d(psi)/dx; restarts at "
+                "zero west of each large island; missing in rows with no eastern coast and in "
+                "the equatorial band",
+            ),
+            "interior_transport": transport.assign_attrs(
+                long_name="Sverdrup interior transport across the basin", units=SV_UNITS,
+                comment="zonal integral of the meridional transport from the eastern coast to "
+                "the western boundary, positive northward; marginal seas excluded. " + empty,
+            ),
+            "boundary_current_transport": (-transport).assign_attrs(
+                long_name="western boundary current transport implied by Sverdrup balance",
+                units=SV_UNITS,
+                comment="minus the interior transport: the western boundary current returns "
+                "the interior flow, positive northward. " + empty,
+            ),
+            "gyre_boundary_lat": crossings.assign_attrs(
+                long_name="latitude where the interior transport changes sign",
+                units="degrees_north",
+                comment="linear interpolation between two neighbouring valid rows, south to "
+                "north, NaN-padded; rows left empty are never bridged",
+            ),
+            "gyre_boundary_count": count.assign_attrs(
+                long_name="number of sign changes of the interior transport", units="1",
+                comment="may exceed the length of the crossing dimension",
+            ),
+            "basin_id": (hw, bid.astype(np.int32), basin_id_attrs(names)),
+            "integration_class": (hw, plan.cell_class, {
+                "long_name": "role of each cell in the westward integral",
+                **_flag_attrs(CELL_CLASS),
+            }),
+            "row_status": (("basin", lat), plan.row_status, {
+                "long_name": "status of the Sverdrup interior transport of each basin row",
+                **_flag_attrs(ROW_STATUS),
+            }),
+            "eastern_boundary_lon": (("basin", lat), _to_user_lon(plan.east_lon, user_lon), {
+                "long_name": "longitude of the eastern coast where the integral starts",
+                "units": "degrees_east",
+                "comment": "cell face; NaN where the row has no eastern coast or no ocean",
+            }),
+            "western_boundary_lon": (("basin", lat), _to_user_lon(plan.west_lon, user_lon), {
+                "long_name": "longitude of the western boundary where the integral ends",
+                "units": "degrees_east",
+                "comment": "cell face; where a row is split by large islands, the western face "
+                "of its westernmost run",
+            }),
+        },
+        coords={"basin": basin},
+    )
+    ds = from_canonical(ds, lay, original)
+    ds.attrs.update(
+        rho0=rho0,
+        equatorial_band=band,
+        island_min_area_km2=island_min_area,
+        continent_min_area_km2=continent_min_area,
+        min_width_km=min_width,
+        fill_gaps=int(bool(fill_gaps)),
+        land_mask_from="ocean_mask argument" if given_mask else "missing stress values",
+        small_islands="integrated across, with stress filled by nearest-ocean averaging",
+        marginal_seas="runs cut off from the widest run of a basin row by a continent are not "
+        "counted (integration_class 2)",
+    )
+    return ds

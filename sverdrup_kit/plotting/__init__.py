@@ -1,0 +1,8 @@
+"""Figures: maps, latitude profiles, time diagrams and the standard figure set.
+
+Imported on demand (``from sverdrup_kit import plotting``), not by ``import sverdrup_kit``:
+cartopy and matplotlib cost about a second to import.
+"""
+
+from .figures import *  # noqa: F401,F403
+from .figures import __all__  # noqa: F401

@@ -1,0 +1,1 @@
+"""Tests of sverdrup_kit.geometry."""
