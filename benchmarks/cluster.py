@@ -26,7 +26,7 @@ def pipeline(u, v, mask):
     from sverdrup_kit.physics.ekman import ekman
     from sverdrup_kit.physics.operators import wind_stress_curl
     from sverdrup_kit.physics.stress import wind_stress
-    from sverdrup_kit.physics.sverdrup import sverdrup
+    from sverdrup_kit.physics.sverdrup import sverdrup_transport
 
     st = wind_stress(u, v)
     out = xr.merge(
@@ -34,7 +34,7 @@ def pipeline(u, v, mask):
             st,
             wind_stress_curl(st["taux"], st["tauy"]).to_dataset(),
             ekman(st["taux"], st["tauy"]),
-            sverdrup(st["taux"], st["tauy"], ocean_mask=mask).drop_vars("wind_stress_curl"),
+            sverdrup_transport(st["taux"], st["tauy"], ocean_mask=mask).drop_vars("wind_stress_curl"),
         ],
         compat="override",
     )

@@ -30,7 +30,8 @@ import naive
 import numba
 import numpy as np
 
-from sverdrup_kit._compiled import curl as _kernels, dispatch, jit as _fast
+from sverdrup_kit._compiled import curl as _kernels
+from sverdrup_kit._compiled import jit as _fast
 
 
 def best_time(fn, repeat):

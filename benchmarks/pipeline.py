@@ -17,10 +17,10 @@ import fields
 import numpy as np
 import xarray as xr
 
-from sverdrup_kit._compiled import dispatch, jit as _fast
+from sverdrup_kit._compiled import dispatch
 from sverdrup_kit.physics.ekman import ekman
 from sverdrup_kit.physics.operators import wind_stress_curl
-from sverdrup_kit.physics.sverdrup import sverdrup
+from sverdrup_kit.physics.sverdrup import sverdrup_transport
 
 
 def best_time(fn, repeat):
@@ -70,7 +70,7 @@ def main(argv=None):
     funcs = {
         "wind_stress_curl": lambda: wind_stress_curl(tx, ty),
         "ekman": lambda: ekman(tx, ty),
-        "sverdrup": lambda: sverdrup(tx, ty, ocean_mask=mask),
+        "sverdrup": lambda: sverdrup_transport(tx, ty, ocean_mask=mask),
     }
     print(f"{'':18s}{'compiled s':>12s}{'NumPy s':>10s}{'ratio':>8s}{'max |diff| / max':>18s}")
     for name, fn in funcs.items():

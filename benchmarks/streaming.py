@@ -38,10 +38,9 @@ def _peak_mb():
 
 def _lazy_winds(days, chunk, seed=0):
     import dask.array as da
+    import fields
     import numpy as np
     import xarray as xr
-
-    import fields
 
     lat, lon = fields.grid(1.0)
     ocean = fields.ocean_mask(1.0, islands=300, seed=seed)
@@ -70,18 +69,18 @@ def run_case(mode, days, chunk):
     import xarray as xr
 
     from sverdrup_kit import progress as _progress
+    from sverdrup_kit.io.writers import write_netcdf
     from sverdrup_kit.physics.ekman import ekman
     from sverdrup_kit.physics.operators import wind_stress_curl
-    from sverdrup_kit.io.writers import write_netcdf
     from sverdrup_kit.physics.stress import wind_stress
-    from sverdrup_kit.physics.sverdrup import sverdrup
+    from sverdrup_kit.physics.sverdrup import sverdrup_transport
 
     def pipeline(days):
         u, v, mask = _lazy_winds(days, chunk)
         st = wind_stress(u, v)
         if mode == "sverdrup":
-            sv = sverdrup(st["taux"], st["tauy"], ocean_mask=mask)
-            return sv["streamfunction"], sv["interior_transport"]
+            sv = sverdrup_transport(st["taux"], st["tauy"], ocean_mask=mask)
+            return sv["sverdrup_streamfunction"], sv["interior_transport"]
         curl = wind_stress_curl(st["taux"], st["tauy"])
         return curl, ekman(st["taux"], st["tauy"])["ekman_pumping"]
 

@@ -2,12 +2,15 @@
 
 Run ``python -m data_recipes.marine_climatology`` to fetch, verify and cache
 
-- ``coads_climatology.cdf``: COADS monthly marine surface climatology, 2 degree grid, 12 months
+- ``coads_monthly``: COADS monthly marine surface climatology, 2 degree grid, 12 months
   (Woodruff et al. 1987, Bull. Amer. Meteor. Soc. 68, 1239-1250);
-- ``levitus_climatology.cdf``: annual temperature and salinity, 1 degree, 20 levels
+- ``levitus_ts``: annual temperature and salinity, 1 degree, 20 levels
   (Levitus 1982, NOAA Prof. Paper 13);
-- ``etopo60.cdf``: global relief at 60 minutes;
-- ``monthly_navy_winds.cdf``: monthly surface winds on a 2.5 degree grid, 132 months.
+- ``etopo60``: global relief at 60 minutes;
+- ``navy_monthly_winds``: monthly surface winds on a 2.5 degree grid, 132 months.
+
+Each is cached under our own plain name with the ``.nc`` suffix (``coads_monthly.nc``, ...);
+:data:`FILES` records which file of the package it comes from.
 
 into ``$SVERDRUP_KIT_DATA`` (default ``~/.cache/sverdrup_kit``). Only the data files are taken
 from the package archive; nothing is installed. A second run checks the cached files and skips
@@ -33,6 +36,7 @@ COMMAND = "python -m data_recipes.marine_climatology"
 class FileSpec:
     """What a good copy of a file looks like: dimension sizes, variables, and the tested hash."""
 
+    package_file: str
     dims: dict
     variables: tuple
     sha256: str
@@ -41,22 +45,26 @@ class FileSpec:
 # Hashes of the files in ferret-datasets 7.6.0-5 (Debian bookworm), the version the tests were
 # written against; a different hash is reported but accepted when the structure checks pass.
 FILES = {
-    "coads_climatology.cdf": FileSpec(
+    "coads_monthly": FileSpec(
+        "coads_climatology.cdf",
         {"COADSX": 180, "COADSY": 90, "TIME": 12},
         ("UWND", "VWND", "WSPD", "SST", "AIRT", "SPEH", "SLP"),
         "b94f55034d13d63f33e2153afddc0c5e00347076c35ab3e34937aec38ce9c4c1",
     ),
-    "levitus_climatology.cdf": FileSpec(
+    "levitus_ts": FileSpec(
+        "levitus_climatology.cdf",
         {"XAXLEVITR": 360, "YAXLEVITR": 180, "ZAXLEVITR": 20},
         ("TEMP", "SALT"),
         "6cf0c43e2b5b790a25547eb90194c0468ab508a40636c1e67b42e892c3b7596b",
     ),
-    "etopo60.cdf": FileSpec(
+    "etopo60": FileSpec(
+        "etopo60.cdf",
         {"ETOPO60X": 360, "ETOPO60Y": 180},
         ("ROSE",),
         "36b4cb72a01cf4c6dc155e52dca6c4ff148aea5958d056d3136fe2789646c4ad",
     ),
-    "monthly_navy_winds.cdf": FileSpec(
+    "navy_monthly_winds": FileSpec(
+        "monthly_navy_winds.cdf",
         {"FNOCX": 144, "FNOCY": 73, "TIME": 132},
         ("UWND", "VWND"),
         "225a9e4fed7bb1a7b558afb662abbe2dc5e3d3db4100fa019cb994f10b115faa",
@@ -66,14 +74,18 @@ FILES = {
 
 def _canonical_name(name: str) -> str:
     key = str(name).strip()
+    key = key[:-3] if key.endswith(".nc") else key
     if key in FILES:
         return key
-    if f"{key}.cdf" in FILES:
-        return f"{key}.cdf"
     raise ValueError(
-        f"name: expected one of {sorted(FILES)} (with or without '.cdf'), found {name!r}. "
+        f"name: expected one of {sorted(FILES)} (with or without '.nc'), found {name!r}. "
         f"Fix: pick one of those names."
     )
+
+
+def cached_file(folder: Path, name: str) -> Path:
+    """Where the data set ``name`` (a key of :data:`FILES`) is cached in ``folder``."""
+    return folder / f"{name}.nc"
 
 
 def verify(file: Path, spec: FileSpec) -> None:
@@ -102,7 +114,7 @@ def verify(file: Path, spec: FileSpec) -> None:
 
 
 def _valid_cached(name: str, folder: Path, manifest: dict) -> bool:
-    file = folder / name
+    file = cached_file(folder, name)
     entry = manifest.get(name)
     if not file.is_file() or not entry:
         return False
@@ -131,24 +143,28 @@ def fetch(*, force: bool = False, out=sys.stdout) -> dict[str, Path]:
     todo = [n for n in FILES if force or not _valid_cached(n, folder, manifest)]
     for name in FILES:
         if name not in todo:
-            print(f"{name}: already cached and verified at {folder / name}", file=out)
+            print(f"{name}: already cached and verified at {cached_file(folder, name)}",
+                  file=out)
     if todo:
         with tempfile.TemporaryDirectory(prefix="sverdrup_kit_recipe_") as tmp:
             tree, version = _debian.fetch_unpacked(PACKAGE, Path(tmp))
             for name in todo:
-                src = tree / PACKAGE_DATA / name
+                spec = FILES[name]
+                src = tree / PACKAGE_DATA / spec.package_file
                 if not src.is_file():
                     raise _debian.RecipeError(
-                        f"{name}: expected at {PACKAGE_DATA}/{name} in {PACKAGE} {version}, "
+                        f"{name}: expected at {PACKAGE_DATA}/{spec.package_file} in {PACKAGE} "
+                        f"{version}, "
                         "not found. Fix: check the package contents with dpkg -c."
                     )
-                spec = FILES[name]
                 verify(src, spec)
                 digest = _debian.sha256(src)
-                _debian.install_file(src, folder / name)
+                target = cached_file(folder, name)
+                _debian.install_file(src, target)
                 manifest[name] = {
                     "sha256": digest,
-                    "size": (folder / name).stat().st_size,
+                    "size": target.stat().st_size,
+                    "package_file": spec.package_file,
                     "package": PACKAGE,
                     "version": version,
                     "dims": spec.dims,
@@ -157,14 +173,14 @@ def fetch(*, force: bool = False, out=sys.stdout) -> dict[str, Path]:
                 note = "" if digest == spec.sha256 else " (differs from the tested 7.6.0-5 copy)"
                 print(
                     f"{name}: fetched from Debian {PACKAGE} {version}, verified dims "
-                    f"{spec.dims}, sha256 {digest[:12]}...{note} -> {folder / name}",
+                    f"{spec.dims}, sha256 {digest[:12]}...{note} -> {target}",
                     file=out,
                 )
-    return {n: folder / n for n in FILES}
+    return {n: cached_file(folder, n) for n in FILES}
 
 
 def path(name: str) -> Path:
-    """Path of a cached file, e.g. ``path('coads_climatology')``.
+    """Path of a cached data set, e.g. ``path('coads_monthly')``.
 
     Checks that the file is present and has the size recorded when it was fetched (the full hash
     is checked by the recipe itself).
@@ -176,7 +192,7 @@ def path(name: str) -> Path:
     """
     name = _canonical_name(name)
     folder = _debian.cache_dir()
-    file = folder / name
+    file = cached_file(folder, name)
     entry = _debian.read_manifest(folder / MANIFEST).get(name)
     if not file.is_file() or not entry or entry.get("size") != file.stat().st_size:
         raise FileNotFoundError(

@@ -11,8 +11,20 @@ Results are climatological diagnostics for research, not forecasts for navigatio
 marine operations.
 """
 
+from .constants import AIR_DENSITY, EARTH_RADIUS, OMEGA, RHO0, SVERDRUP_IN_M3_S
+from .geometry.basins import basin_ids
+from .geometry.grid import SphericalGrid, beta_parameter, coriolis_parameter
+from .errors import (
+    GridError,
+    InputError,
+    MonthlyMeanWindWarning,
+    TimeDecodingWarning,
+    UnitsError,
+)
+from .io.readers import open_stress, open_winds
+from .io.writers import write_netcdf
+from .ocean.observations import boundary_current_observations
 from .physics.barotropic import boundary_current, solve_barotropic, solve_basin
-from .geometry.basins import basin_mask
 from .physics.boundary_layers import (
     munk_boundary_layer,
     munk_edge_distance,
@@ -21,22 +33,17 @@ from .physics.boundary_layers import (
     stommel_basin,
     stommel_width,
 )
-from .constants import AIR_DENSITY, EARTH_RADIUS, OMEGA, RHO0, SVERDRUP
 from .physics.ekman import ekman
-from .geometry.grid import SphericalGrid, beta_parameter, coriolis_parameter
-from .ocean.observations import boundary_current_observations
 from .physics.operators import curl_on_sphere, wind_stress_curl
-from .io.writers import write_netcdf
-from .io.readers import TimeDecodingWarning, open_stress, open_winds
-from .physics.stress import DRAG_LAWS, DragLaw, MonthlyMeanWindWarning, drag_coefficient, wind_stress
-from .physics.sverdrup import sverdrup
+from .physics.stress import DRAG_LAWS, DragLaw, drag_coefficient, wind_stress
+from .physics.sverdrup import sverdrup_transport
 from .pipeline import diagnose
 
 __version__ = "0.1.0"
 
 __all__ = [
     "AIR_DENSITY",
-    "basin_mask",
+    "basin_ids",
     "beta_parameter",
     "boundary_current",
     "boundary_current_observations",
@@ -48,6 +55,8 @@ __all__ = [
     "DragLaw",
     "EARTH_RADIUS",
     "ekman",
+    "GridError",
+    "InputError",
     "MonthlyMeanWindWarning",
     "munk_boundary_layer",
     "munk_edge_distance",
@@ -62,9 +71,10 @@ __all__ = [
     "SphericalGrid",
     "stommel_basin",
     "stommel_width",
-    "sverdrup",
-    "SVERDRUP",
+    "sverdrup_transport",
+    "SVERDRUP_IN_M3_S",
     "TimeDecodingWarning",
+    "UnitsError",
     "wind_stress",
     "wind_stress_curl",
     "write_netcdf",

@@ -30,7 +30,21 @@ def _drag_arg(text: str):
         return text
 
 
+def latitude_label(lat: float, decimals: int = 1) -> str:
+    """A latitude as oceanographers write it: ``15.5S``, ``0``, ``30N``.
+
+    >>> latitude_label(-15.5), latitude_label(30, 0), latitude_label(0.0)
+    ('15.5S', '30N', '0')
+    """
+    text = f"{abs(lat):.{decimals}f}"
+    if float(text) == 0:
+        return "0"
+    return text + ("N" if lat > 0 else "S")
+
+
 def _parser() -> argparse.ArgumentParser:
+    from .physics.stress import DRAG_LAWS
+
     p = argparse.ArgumentParser(
         prog="sverdrup-kit",
         description="Wind-driven ocean circulation diagnostics from a gridded wind climatology. "
@@ -49,17 +63,22 @@ def _parser() -> argparse.ArgumentParser:
     src.add_argument("--synthetic", action="store_true",
                      help="use the bundled synthetic world instead of a file")
     d.add_argument("--out", required=True, help="folder for results.nc and the figures")
-    d.add_argument("--stress", action="store_true",
-                   help="the file holds wind stress, not wind (skips the drag law)")
-    d.add_argument("--u", help="name of the eastward wind (or stress) variable, if not found")
-    d.add_argument("--v", help="name of the northward wind (or stress) variable, if not found")
-    d.add_argument("--drag", type=_drag_arg, default="large-pond-1981",
-                   help="drag law name or a constant drag coefficient (default: large-pond-1981)")
+    d.add_argument("--input-kind", choices=("wind", "stress"), default="wind",
+                   help="what the file holds: 10 m wind (stress from a drag law) or wind stress "
+                        "(the drag law is skipped); default: wind")
+    d.add_argument("--u-var", metavar="NAME",
+                   help="name of the eastward wind (or stress) variable, if not found")
+    d.add_argument("--v-var", metavar="NAME",
+                   help="name of the northward wind (or stress) variable, if not found")
+    d.add_argument("--drag-law", type=_drag_arg, default="large-pond-1981", metavar="LAW",
+                   help="drag law: one of " + ", ".join(DRAG_LAWS) + ", or a constant drag "
+                        "coefficient such as 1.3e-3 (default: large-pond-1981)")
     d.add_argument("--air-density", type=float, default=None, help="kg m-3 (default 1.22)")
     d.add_argument("--basins", default=None,
                    help="'earth' for named Atlantic/Pacific/Indian basins; default: connected "
                         "ocean regions")
-    d.add_argument("--rho0", type=float, default=None, help="sea-water density, kg m-3")
+    d.add_argument("--water-density", type=float, default=None,
+                   help="reference sea-water density rho0, kg m-3 (default 1025)")
     d.add_argument("--no-figures", action="store_true", help="write the NetCDF only")
     d.add_argument("--no-progress", action="store_true",
                    help="do not draw a progress bar for computations longer than a second")
@@ -68,8 +87,7 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def _open(args):
-    from . import open_stress
-    from . import open_winds
+    from . import open_stress, open_winds
     from .synthetic import load_world
 
     if args.synthetic:
@@ -78,9 +96,9 @@ def _open(args):
     if not (str(src).startswith(("http://", "https://")) or Path(src).exists()):
         raise CommandError(f"source: no such file '{src}'. Fix: check the path.")
     try:
-        if args.stress:
-            return open_stress(src, taux=args.u, tauy=args.v)
-        return open_winds(src, u=args.u, v=args.v)
+        if args.input_kind == "stress":
+            return open_stress(src, taux=args.u_var, tauy=args.v_var)
+        return open_winds(src, u=args.u_var, v=args.v_var)
     except OSError as err:
         raise CommandError(
             f"source: could not read '{src}' as NetCDF ({err.__class__.__name__}: {err}). "
@@ -93,7 +111,7 @@ def _summary(res, say) -> None:
     tr = res["interior_transport"]
     say("interior Sverdrup transport (Sv, + northward); the western boundary current carries "
         "minus this:")
-    header = "  basin            " + "".join(f"{la:>7d}" for la in lats)
+    header = "  basin            " + "".join(f"{latitude_label(la, 0):>7s}" for la in lats)
     say(header)
     for b in tr["basin"].values:
         row = tr.sel(basin=b)
@@ -110,7 +128,7 @@ def _summary(res, say) -> None:
             g = res["gyre_boundary_lat"].sel(basin=b).values
             g = g[np.isfinite(g)]
             if g.size:
-                say(f"  gyre boundaries in {b}: " + ", ".join(f"{x:.1f}" for x in g) + " deg N")
+                say(f"  gyre boundaries in {b}: " + ", ".join(latitude_label(x) for x in g))
 
 
 def _run_diagnose(args) -> int:
@@ -127,15 +145,15 @@ def _run_diagnose(args) -> int:
     kw = {}
     if args.air_density is not None:
         kw["air_density"] = args.air_density
-    if args.rho0 is not None:
-        kw["rho0"] = args.rho0
+    if args.water_density is not None:
+        kw["rho0"] = args.water_density
     basins = args.basins
     if basins is None and args.synthetic:
         from .synthetic import world_basins
 
         basins = world_basins(winds)
     say("computing stress, curl, Ekman and Sverdrup transports")
-    res = diagnose(winds, drag=args.drag, basins=basins, **kw)
+    res = diagnose(winds, drag_law=args.drag_law, basins=basins, **kw)
     from .progress import progress
 
     with progress(enabled=not (args.no_progress or args.quiet)):

@@ -9,7 +9,7 @@ __all__ = [
     "EARTH_RADIUS",
     "RHO0",
     "AIR_DENSITY",
-    "SVERDRUP",
+    "SVERDRUP_IN_M3_S",
     "GRAVITY",
 ]
 
@@ -27,7 +27,7 @@ AIR_DENSITY = 1.22
 
 #: One sverdrup in m3 s-1 (definition). UDUNITS reads "Sv" as sievert, so units are written
 #: as "1e6 m3 s-1" in files.
-SVERDRUP = 1.0e6
+SVERDRUP_IN_M3_S = 1.0e6
 
 #: Standard gravity, m s-2 (CGPM 1901 conventional value).
 GRAVITY = 9.80665

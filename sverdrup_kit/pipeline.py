@@ -11,14 +11,14 @@ import warnings
 import xarray as xr
 
 from . import constants
-from .physics.ekman import DEFAULT_EQUATORIAL_BAND, ekman
+from .physics.ekman import DEFAULT_EQUATORIAL_HALF_WIDTH, ekman
 from .physics.stress import wind_stress
-from .physics.sverdrup import sverdrup
+from .physics.sverdrup import sverdrup_transport
 
 __all__ = ["diagnose"]
 
 
-def _stress_from(winds: xr.Dataset, *, drag, air_density, use_speed) -> xr.Dataset:
+def _stress_from(winds: xr.Dataset, *, drag_law, air_density, use_wind_speed) -> xr.Dataset:
     if "taux" in winds and "tauy" in winds:
         return winds[["taux", "tauy"]]
     if not ("u" in winds and "v" in winds):
@@ -27,20 +27,20 @@ def _stress_from(winds: xr.Dataset, *, drag, air_density, use_speed) -> xr.Datas
             f"(from open_stress), found variables {list(winds.data_vars)}. Fix: open the file "
             "with sverdrup_kit.open_winds or open_stress, or rename the variables."
         )
-    speed = winds["wind_speed"] if use_speed and "wind_speed" in winds else None
-    return wind_stress(winds["u"], winds["v"], drag=drag, air_density=air_density, speed=speed)
+    speed = winds["wind_speed"] if use_wind_speed and "wind_speed" in winds else None
+    return wind_stress(winds["u"], winds["v"], drag_law=drag_law, air_density=air_density, wind_speed=speed)
 
 
 def diagnose(
     winds: xr.Dataset,
     *,
-    drag="large-pond-1981",
+    drag_law="large-pond-1981",
     air_density: float = constants.AIR_DENSITY,
-    use_speed: bool = True,
+    use_wind_speed: bool = True,
     basins=None,
     ocean_mask=None,
     rho0: float = constants.RHO0,
-    equatorial_band: float = DEFAULT_EQUATORIAL_BAND,
+    equatorial_half_width: float = DEFAULT_EQUATORIAL_HALF_WIDTH,
 ) -> xr.Dataset:
     """Run the data path on a wind (or stress) climatology.
 
@@ -49,13 +49,13 @@ def diagnose(
     winds : xarray.Dataset
         From :func:`~sverdrup_kit.open_winds` (``u``, ``v``, optionally ``wind_speed``) or
         :func:`~sverdrup_kit.open_stress` (``taux``, ``tauy``), with or without ``time``.
-    drag, air_density
+    drag_law, air_density
         Passed to :func:`~sverdrup_kit.physics.stress.wind_stress` (ignored when stress is given).
-    use_speed : bool, optional
+    use_wind_speed : bool, optional
         Use the scalar-mean ``wind_speed`` in the bulk formula when the data carry it (the
         better choice for monthly climatologies).
-    basins, ocean_mask, rho0, equatorial_band
-        Passed to :func:`~sverdrup_kit.physics.sverdrup.sverdrup` and :func:`~sverdrup_kit.physics.ekman.ekman`.
+    basins, ocean_mask, rho0, equatorial_half_width
+        Passed to :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport` and :func:`~sverdrup_kit.physics.ekman.ekman`.
 
     Returns
     -------
@@ -76,7 +76,7 @@ def diagnose(
             f"winds: expected an xarray.Dataset, found {type(winds).__name__}. Fix: open the "
             "file with sverdrup_kit.open_winds(path)."
         )
-    stress = _stress_from(winds, drag=drag, air_density=air_density, use_speed=use_speed)
+    stress = _stress_from(winds, drag_law=drag_law, air_density=air_density, use_wind_speed=use_wind_speed)
     has_time = "time" in stress.dims
     with warnings.catch_warnings():
         # A mean of a few all-land columns is NaN by design; that is not news to the user.
@@ -91,13 +91,13 @@ def diagnose(
                 "mean over the time steps with data; cells missing in some steps are averaged "
                 "over the steps they have"
             )
-    sv = sverdrup(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
-                  equatorial_band=equatorial_band)
-    ek = ekman(mean["taux"], mean["tauy"], rho0=rho0, equatorial_band=equatorial_band)
+    sv = sverdrup_transport(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
+                  equatorial_half_width=equatorial_half_width)
+    ek = ekman(mean["taux"], mean["tauy"], rho0=rho0, equatorial_half_width=equatorial_half_width)
     out = xr.merge([mean, ek, sv], compat="override", combine_attrs="drop_conflicts")
     if has_time:
-        monthly = sverdrup(stress["taux"], stress["tauy"], basins=basins, ocean_mask=ocean_mask,
-                           rho0=rho0, equatorial_band=equatorial_band)
+        monthly = sverdrup_transport(stress["taux"], stress["tauy"], basins=basins, ocean_mask=ocean_mask,
+                           rho0=rho0, equatorial_half_width=equatorial_half_width)
         out["interior_transport_by_time"] = monthly["interior_transport"].assign_attrs(
             monthly["interior_transport"].attrs,
             long_name="Sverdrup interior transport of each time step",
@@ -106,7 +106,7 @@ def diagnose(
         title="Wind-driven circulation diagnosed from a wind climatology",
         drag_law=str(stress.attrs.get("drag_law", stress["taux"].attrs.get("drag_law", "given"))),
         rho0=rho0,
-        equatorial_band=equatorial_band,
+        equatorial_half_width=equatorial_half_width,
         source_winds=str(winds.attrs.get("source", winds.attrs.get("title", "unknown"))),
     )
     return out

@@ -500,21 +500,21 @@ def load_world(*, chunks=None) -> xr.Dataset:
 BASIN_LANDMARKS = {
     "halcyon": (29.0, 121.0),
     "lissom": (29.0, 291.0),
-    "austral": (-41.0, 1.0),
+    "skerrow_passage": (-41.0, 1.0),
 }
 
 
 def world_basins(world: xr.Dataset | None = None) -> xr.DataArray:
     """Basin numbers of the synthetic world with their invented names.
 
-    The connected ocean regions that :func:`sverdrup_kit.basin_mask` finds, each named after
+    The connected ocean regions that :func:`sverdrup_kit.basin_ids` finds, each named after
     the landmark of :data:`BASIN_LANDMARKS` it contains; pass the result as ``basins=`` to
-    :func:`sverdrup_kit.physics.sverdrup` or :func:`sverdrup_kit.diagnose`.
+    :func:`sverdrup_kit.sverdrup_transport` or :func:`sverdrup_kit.diagnose`.
     """
-    from .geometry.basins import basin_mask
+    from .geometry.basins import basin_ids
 
     world = load_world() if world is None else world
-    ids = basin_mask(world["ocean_mask"].astype(bool))
+    ids = basin_ids(world["ocean_mask"].astype(bool))
     numbers, names = [], []
     lon0 = float(ids.lon.min())
     for name, (lat, lon) in BASIN_LANDMARKS.items():

@@ -26,23 +26,23 @@ def _real_file(name: str):
 
 @pytest.fixture(scope="session")
 def marine_climatology():
-    """Path of ``coads_climatology.cdf`` (COADS monthly marine surface climatology)."""
-    return _real_file("coads_climatology.cdf")
+    """Path of ``coads_monthly.nc`` (COADS monthly marine surface climatology)."""
+    return _real_file("coads_monthly")
 
 
 @pytest.fixture(scope="session")
 def etopo60():
-    """Path of ``etopo60.cdf`` (global relief at 60 minutes)."""
-    return _real_file("etopo60.cdf")
+    """Path of ``etopo60.nc`` (global relief at 60 minutes)."""
+    return _real_file("etopo60")
 
 
 @pytest.fixture(scope="session")
 def levitus():
-    """Path of ``levitus_climatology.cdf`` (annual temperature and salinity, 1 degree)."""
-    return _real_file("levitus_climatology.cdf")
+    """Path of ``levitus_ts.nc`` (annual temperature and salinity, 1 degree)."""
+    return _real_file("levitus_ts")
 
 
 @pytest.fixture(scope="session")
 def navy_winds():
-    """Path of ``monthly_navy_winds.cdf`` (monthly surface winds, 2.5 degree, 132 months)."""
-    return _real_file("monthly_navy_winds.cdf")
+    """Path of ``navy_monthly_winds.nc`` (monthly surface winds, 2.5 degree, 132 months)."""
+    return _real_file("navy_monthly_winds")

@@ -32,7 +32,7 @@ def test_results_reopen_and_units_parse_with_udunits(synthetic_run):
                 assert "long_name" in var.attrs, name
                 assert units is not None, name
         # Sverdrup is not "Sv" (sievert in UDUNITS): the streamfunction is convertible to m3 s-1.
-        assert cf_units.Unit(ds.streamfunction.attrs["units"]).is_convertible("m3 s-1")
+        assert cf_units.Unit(ds.sverdrup_streamfunction.attrs["units"]).is_convertible("m3 s-1")
         assert ds.interior_transport.dims[-2:] == ("basin", "lat")
         assert np.isfinite(ds.interior_transport).any()
 
@@ -56,7 +56,7 @@ def test_bad_file_gives_one_clear_line(tmp_path, capsys):
 def test_missing_file_and_bad_drag_law(tmp_path, capsys):
     assert main(["diagnose", str(tmp_path / "nope.nc"), "--out", str(tmp_path)]) == 2
     assert "no such file" in capsys.readouterr().err
-    code = main(["diagnose", "--synthetic", "--drag", "made-up-law", "--out", str(tmp_path),
+    code = main(["diagnose", "--synthetic", "--drag-law", "made-up-law", "--out", str(tmp_path),
                  "--no-figures"])
     err = capsys.readouterr().err.strip()
     assert code == 2 and len(err.splitlines()) == 1 and "made-up-law" in err

@@ -8,7 +8,7 @@ from data_recipes import _debian, marine_climatology
 def test_missing_file_names_the_command_to_fetch_it(tmp_path, monkeypatch):
     monkeypatch.setenv("SVERDRUP_KIT_DATA", str(tmp_path))
     with pytest.raises(FileNotFoundError, match="python -m data_recipes.marine_climatology"):
-        marine_climatology.path("coads_climatology")
+        marine_climatology.path("coads_monthly")
 
 
 def test_unknown_file_name_lists_the_valid_ones():

@@ -5,7 +5,7 @@ import xarray as xr
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from sverdrup_kit import sverdrup, wind_stress_curl
+from sverdrup_kit import sverdrup_transport, wind_stress_curl
 
 # derandomize: the same examples on every run, so CI results are reproducible.
 SETTINGS = settings(max_examples=15, deadline=None, derandomize=True)
@@ -59,7 +59,7 @@ def test_sverdrup_conserves_mass_and_leaves_only_flagged_rows_empty(seed, land):
     # Mass conservation (derived from the Sverdrup relation): the boundary current returns the
     # interior transport exactly; and a row is empty exactly when row_status says why.
     tx, ty = random_world(seed, 6.0, land)
-    ds = sverdrup(tx, ty)
+    ds = sverdrup_transport(tx, ty)
     total = ds.interior_transport + ds.boundary_current_transport
     assert np.all((total.values == 0) | np.isnan(total.values))
     valid = ds.row_status.values == 0

@@ -91,9 +91,9 @@ def _ekman(d):
 
 
 def _sverdrup(d):
-    from sverdrup_kit.physics.sverdrup import sverdrup
+    from sverdrup_kit.physics.sverdrup import sverdrup_transport
 
-    return sverdrup(d["taux"], d["tauy"], ocean_mask=d["mask"])
+    return sverdrup_transport(d["taux"], d["tauy"], ocean_mask=d["mask"])
 
 
 def _diagnose(d):

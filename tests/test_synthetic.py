@@ -349,7 +349,7 @@ def test_world_basins_are_named_and_carry_the_documented_oceans():
 
     world = synthetic.load_world()
     ids = world_basins(world)
-    assert ids.attrs["flag_meanings"].split() == ["halcyon", "lissom", "austral"]
+    assert ids.attrs["flag_meanings"].split() == ["halcyon", "lissom", "skerrow_passage"]
     row = ids.sel(lat=41.0)
     assert int((row == 0).sum()) * 2 == 130
     assert int((row == 1).sum()) * 2 == 60

@@ -18,15 +18,14 @@ only fight over the cores.
 
 from __future__ import annotations
 
-import os
 import threading
 from functools import lru_cache, partial
 
 import numba
 import numpy as np
 
-
 from .stencil import shift_coord
+
 
 def _in_main_thread() -> bool:
     return threading.current_thread() is threading.main_thread()

@@ -114,7 +114,7 @@ def sum_groups(totals, group_runs, group_starts, group_slot, n_slots):
     return out
 
 
-def sign_changes(t, lat, valid, *, max_crossings):
+def sign_changes(t, lat, valid, *, max_gyre_boundaries):
     """Latitudes where ``t`` changes sign between neighbouring valid rows.
 
     Parameters
@@ -125,15 +125,15 @@ def sign_changes(t, lat, valid, *, max_crossings):
         Ascending row latitudes.
     valid : ndarray of bool (nb, ny)
         Rows that may be used; a crossing needs two neighbouring valid rows.
-    max_crossings : int
+    max_gyre_boundaries : int
         Length of the output's last axis.
 
     Returns
     -------
-    crossings : ndarray (..., nb, max_crossings)
+    crossings : ndarray (..., nb, max_gyre_boundaries)
         Latitudes by linear interpolation between the two rows, south to north, NaN-padded.
     count : ndarray (..., nb), int64
-        Number of sign changes found (may exceed ``max_crossings``).
+        Number of sign changes found (may exceed ``max_gyre_boundaries``).
     """
     t = np.asarray(t, dtype=np.float64)
     a, b = t[..., :-1], t[..., 1:]
@@ -147,7 +147,7 @@ def sign_changes(t, lat, valid, *, max_crossings):
     # Sorting puts NaN last, so the found latitudes come first in ascending order.
     y = np.sort(y, axis=-1)
     k = y.shape[-1]
-    if k >= max_crossings:
-        return y[..., :max_crossings], count
-    pad = np.full(y.shape[:-1] + (max_crossings - k,), np.nan)
+    if k >= max_gyre_boundaries:
+        return y[..., :max_gyre_boundaries], count
+    pad = np.full(y.shape[:-1] + (max_gyre_boundaries - k,), np.nan)
     return np.concatenate([y, pad], axis=-1), count

@@ -31,7 +31,7 @@ from .coords import GridError, matching_positions, to_canonical
 from .grid import SphericalGrid
 
 __all__ = [
-    "basin_mask",
+    "basin_ids",
     "EARTH_DIVIDING_LINES",
     "EARTH_BASIN_SEEDS",
     "EARTH_COASTAL_LINES",
@@ -184,7 +184,7 @@ def label_cells(mask, *, periodic, diagonal=False, cut_east=None, cut_north=None
 # --------------------------------------------------------------------------------------------
 
 
-def classify_land(ocean, grid: SphericalGrid, *, island_min_area, continent_min_area):
+def classify_land(ocean, grid: SphericalGrid, *, island_min_area_km2, continent_min_area_km2):
     """Class of every cell: OCEAN, SMALL_ISLAND, LARGE_ISLAND or CONTINENT, and land labels.
 
     Areas are exact spherical cell areas summed over 8-connected land bodies. A land body that
@@ -203,9 +203,9 @@ def classify_land(ocean, grid: SphericalGrid, *, island_min_area, continent_min_
     if grid.lat_edges[-1] < 90.0 - 1e-6:
         edge[labels[-1][labels[-1] >= 0]] = True
     body = np.where(
-        edge | (area_km2 >= continent_min_area),
+        edge | (area_km2 >= continent_min_area_km2),
         CONTINENT,
-        np.where(area_km2 < island_min_area, SMALL_ISLAND, LARGE_ISLAND),
+        np.where(area_km2 < island_min_area_km2, SMALL_ISLAND, LARGE_ISLAND),
     )
     cls = np.full(ocean.shape, OCEAN, dtype=np.int8)
     cls[land] = body[labels[land]]
@@ -766,24 +766,24 @@ def _face(edges, i, nx, periodic):
 # --------------------------------------------------------------------------------------------
 
 
-def basin_mask(
+def basin_ids(
     ocean_mask,
     *,
     basins=None,
-    island_min_area: float = ISLAND_MIN_AREA,
-    continent_min_area: float = CONTINENT_MIN_AREA,
+    island_min_area_km2: float = ISLAND_MIN_AREA,
+    continent_min_area_km2: float = CONTINENT_MIN_AREA,
 ) -> xr.DataArray:
-    """Basin numbers of every cell of a land-sea mask, as :func:`~sverdrup_kit.physics.sverdrup` uses them.
+    """Basin numbers of every cell of a land-sea mask, as :func:`~sverdrup_kit.sverdrup_transport` uses them.
 
     Parameters
     ----------
     ocean_mask : xarray.DataArray (lat, lon)
         True (or 1) for ocean, False/0/NaN for land; any latitude order and longitude convention.
     basins : None, "earth", DataArray or dict, optional
-        As in :func:`~sverdrup_kit.physics.sverdrup.sverdrup`.
-    island_min_area, continent_min_area : float, optional
-        Land bodies below ``island_min_area`` km2 are small islands and join the basin around
-        them; see :func:`~sverdrup_kit.physics.sverdrup.sverdrup`.
+        As in :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`.
+    island_min_area_km2, continent_min_area_km2 : float, optional
+        Land bodies below ``island_min_area_km2`` km2 are small islands and join the basin around
+        them; see :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`.
 
     Returns
     -------
@@ -799,11 +799,11 @@ def basin_mask(
     can = to_canonical(ocean_mask, lay).transpose(lay.lat_name, lay.lon_name)
     ocean = _as_bool(np.asarray(can.values), "ocean_mask")
     cls, land_labels = classify_land(
-        ocean, grid, island_min_area=island_min_area, continent_min_area=continent_min_area
+        ocean, grid, island_min_area_km2=island_min_area_km2, continent_min_area_km2=continent_min_area_km2
     )
     water = cls <= SMALL_ISLAND
     bid, names, _ = assign_basins(basins, water, grid, lay, ocean_mask, cls, land_labels,
-                                  min_area=island_min_area)
+                                  min_area=island_min_area_km2)
     out = xr.DataArray(bid.astype(np.int32), coords=can.coords, dims=can.dims)
     out = from_canonical(out, lay, ocean_mask)
     return out.rename("basin_id").assign_attrs(basin_id_attrs(names))

@@ -12,15 +12,14 @@ from dataclasses import dataclass
 import numpy as np
 import xarray as xr
 
+from ..errors import GridError
+
 # Tables of criteria, kept apart from the logic (unit spellings seen in real files).
 LAT_UNITS = {"degrees_north", "degree_north", "degree_n", "degrees_n", "degreen", "degreesn"}
 LON_UNITS = {"degrees_east", "degree_east", "degree_e", "degrees_e", "degreee", "degreese"}
 LAT_NAMES = {"lat", "latitude", "lats", "nav_lat", "yt", "y", "xlat", "g0_lat_0", "ylat"}
 LON_NAMES = {"lon", "longitude", "lons", "long", "nav_lon", "xt", "x", "xlon", "g0_lon_1", "xlong"}
 
-
-class GridError(ValueError):
-    """A latitude/longitude grid that the toolkit cannot work on, with the reason and the fix."""
 
 
 def _norm(s) -> str:

@@ -178,7 +178,7 @@ class SphericalGrid:
         band = np.diff(np.sin(np.deg2rad(self.lat_edges)))
         return self.radius**2 * band[:, None] * self.dlon_rad[None, :]
 
-    def equatorial_band(self, half_width: float) -> np.ndarray:
+    def equatorial_mask(self, half_width: float) -> np.ndarray:
         """Boolean (ny,) mask of rows within ``half_width`` degrees of the equator."""
         return np.abs(self.lat) < half_width
 

@@ -20,14 +20,12 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
+from ..errors import TimeDecodingWarning
 from ..geometry.coords import GridError, grid_layout, to_canonical
 from .units import KIND, si_factor
 
 __all__ = ["open_winds", "open_stress", "TimeDecodingWarning"]
 
-
-class TimeDecodingWarning(UserWarning):
-    """A time axis that its own calendar cannot decode was decoded another way."""
 
 
 @dataclass(frozen=True)
@@ -113,7 +111,7 @@ LON_ATTRS = {"units": "degrees_east", "standard_name": "longitude", "long_name":
 # Public functions
 
 
-def open_winds(source, *, u=None, v=None, speed=None) -> xr.Dataset:
+def open_winds(source, *, u=None, v=None, wind_speed=None) -> xr.Dataset:
     """Open near-surface winds and put them on the canonical grid in m s-1.
 
     Parameters
@@ -121,9 +119,9 @@ def open_winds(source, *, u=None, v=None, speed=None) -> xr.Dataset:
     source : str, os.PathLike, list of paths, xarray.Dataset, tuple or dict of xarray.DataArray
         A netCDF path (a glob pattern, list or tuple of paths is combined along time with
         :func:`xarray.open_mfdataset`), a URL that xarray can open (OPeNDAP), a Dataset, or the
-        components themselves as ``(u, v)``, ``(u, v, speed)`` or
-        ``{'u': u, 'v': v, 'speed': speed}``.
-    u, v, speed : str, optional
+        components themselves as ``(u, v)``, ``(u, v, wind_speed)`` or
+        ``{'u': u, 'v': v, 'wind_speed': wind_speed}``.
+    u, v, wind_speed : str, optional
         Names of the eastward wind, northward wind and scalar-mean wind speed in ``source``
         when they cannot be found by CF ``standard_name`` (``eastward_wind``,
         ``northward_wind``, ``wind_speed``) or a common name (``u``, ``uwnd``, ``u10``,
@@ -163,20 +161,20 @@ def open_winds(source, *, u=None, v=None, speed=None) -> xr.Dataset:
 
     Examples
     --------
-    >>> winds = open_winds("coads_climatology.cdf")  # doctest: +SKIP
+    >>> winds = open_winds("monthly_winds.nc")  # doctest: +SKIP
     >>> winds.u.groupby("time.month").mean()  # doctest: +SKIP
     """
     if isinstance(source, dict) or (
         isinstance(source, tuple) and any(isinstance(s, xr.DataArray) for s in source)
     ):
-        if any(k is not None for k in (u, v, speed)):
+        if any(k is not None for k in (u, v, wind_speed)):
             raise TypeError(
-                "open_winds: u, v, speed name variables inside a file or Dataset; with a tuple "
+                "open_winds: u, v, wind_speed name variables inside a file or Dataset; with a tuple "
                 "or dict source the components are given directly. Fix: drop the keywords, "
                 "e.g. open_winds((u, v))."
             )
         return _open_components(source)
-    return _open(source, WIND_FIELDS, {"u": u, "v": v, "speed": speed}, "open_winds")
+    return _open(source, WIND_FIELDS, {"u": u, "v": v, "speed": wind_speed}, "open_winds")
 
 
 def open_stress(source, *, taux=None, tauy=None) -> xr.Dataset:

@@ -10,6 +10,8 @@ import re
 
 import xarray as xr
 
+from ..errors import UnitsError
+
 KNOT = 1852.0 / 3600.0
 
 SPEED = {
@@ -34,9 +36,6 @@ STRESS = {
 CASE_SENSITIVE = {"mpa": "mPa"}
 KIND = {"speed": (SPEED, "m s-1", "a wind speed"), "stress": (STRESS, "Pa", "a stress")}
 
-
-class UnitsError(ValueError):
-    """Units that the toolkit does not recognise for the quantity asked for."""
 
 
 def _fold(units: str) -> str:

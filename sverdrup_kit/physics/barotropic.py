@@ -76,9 +76,9 @@ import xarray as xr
 from .. import constants
 from .._apply import apply_grid_kernel
 from ..geometry.coords import check_same_grid, from_canonical, require_dataarray, to_canonical
+from ..geometry.grid import SphericalGrid
 from ..io.units import to_si
 from .boundary_layers import munk_width, stommel_width
-from ..geometry.grid import SphericalGrid
 
 __all__ = ["solve_barotropic", "solve_basin", "boundary_current", "ROTATIONS", "BOUNDARIES"]
 
@@ -506,15 +506,15 @@ def _assemble_output(op, psi, curl_si, beta2d, *, rho0, depth, dims, coords):
     dpx, dpy = op.derivatives(psi)
     V = np.where(ocean, dpx, np.nan)
     U = np.where(ocean, -dpy, np.nan)
-    psi_out = psi / constants.SVERDRUP
+    psi_out = psi / constants.SVERDRUP_IN_M3_S
     resid = beta2d * V - curl_si / rho0
     ds = xr.Dataset(
         {
-            "streamfunction": (dims, psi_out, _ATTRS["psi"]),
-            "eastward_transport": (dims, U, _ATTRS["U"]),
-            "northward_transport": (dims, V, _ATTRS["V"]),
-            "eastward_velocity": (dims, U / depth, _ATTRS["u"]),
-            "northward_velocity": (dims, V / depth, _ATTRS["v"]),
+            "barotropic_streamfunction": (dims, psi_out, _ATTRS["psi"]),
+            "barotropic_eastward_transport": (dims, U, _ATTRS["U"]),
+            "barotropic_northward_transport": (dims, V, _ATTRS["V"]),
+            "barotropic_eastward_velocity": (dims, U / depth, _ATTRS["u"]),
+            "barotropic_northward_velocity": (dims, V / depth, _ATTRS["v"]),
             "sverdrup_residual": (dims, resid, _ATTRS["resid"]),
             "land_mass": (dims, op.island_ids(), _ATTRS["land"]),
         },
@@ -563,7 +563,7 @@ def _solution_attrs(op, *, r, A_H, boundary, islands, rho0, depth, rotation, isl
             "= wind circulation/rho0"
         ),
         n_islands=op.n_islands,
-        island_streamfunction=np.asarray(island_psi) / constants.SVERDRUP,
+        island_streamfunction=np.asarray(island_psi) / constants.SVERDRUP_IN_M3_S,
         island_wind_circulation_from="; ".join(
             f"island {k}: {h}" for k, h in enumerate(island_how, start=1)) or "no islands",
         rho0=rho0,
@@ -629,8 +629,8 @@ def solve_basin(
     Returns
     -------
     xarray.Dataset on (y, x)
-        ``streamfunction`` (1e6 m3 s-1), ``eastward_transport``/``northward_transport``
-        (m2 s-1), ``eastward_velocity``/``northward_velocity`` (m s-1), ``sverdrup_residual``
+        ``barotropic_streamfunction`` (1e6 m3 s-1), ``barotropic_eastward_transport``/``barotropic_northward_transport``
+        (m2 s-1), ``barotropic_eastward_velocity``/``barotropic_northward_velocity`` (m s-1), ``sverdrup_residual``
         (m s-2), ``land_mass``, ``wind_stress_curl`` (N m-3), ``coriolis_parameter`` and
         ``beta`` (y); parameters, widths ``delta_S``/``delta_M`` (m) and timings in attrs.
 
@@ -819,9 +819,9 @@ def solve_barotropic(
     Returns
     -------
     xarray.Dataset (..., lat, lon) on the input grid and order
-        ``streamfunction`` (1e6 m3 s-1, zero on the main coast, standard_name
-        ocean_barotropic_streamfunction), ``eastward_transport``/``northward_transport``
-        (m2 s-1), ``eastward_velocity``/``northward_velocity`` (m s-1), ``sverdrup_residual``
+        ``barotropic_streamfunction`` (1e6 m3 s-1, zero on the main coast, standard_name
+        ocean_barotropic_streamfunction), ``barotropic_eastward_transport``/``barotropic_northward_transport``
+        (m2 s-1), ``barotropic_eastward_velocity``/``barotropic_northward_velocity`` (m s-1), ``sverdrup_residual``
         (m s-2), ``land_mass`` (-1 ocean, 0 main coast, k island k), ``wind_stress_curl``,
         ``coriolis_parameter`` and ``beta`` (lat). Attributes: the parameters,
         ``island_streamfunction`` (1e6 m3 s-1, island k at position k - 1),
@@ -839,7 +839,7 @@ def solve_barotropic(
     Examples
     --------
     >>> out = solve_barotropic(curl, r=2e-6, rotation="sphere")     # doctest: +SKIP
-    >>> out.streamfunction.sel(lat=30, method="nearest").max()       # doctest: +SKIP
+    >>> out.barotropic_streamfunction.sel(lat=30, method="nearest").max()       # doctest: +SKIP
     """
     curl = require_dataarray(curl, "curl")
     _check_params(r, A_H, boundary, islands, rotation)
@@ -893,11 +893,11 @@ def solve_barotropic(
     land = op.island_ids()
     ds = xr.Dataset(
         {
-            "streamfunction": (psi / constants.SVERDRUP).assign_attrs(_ATTRS["psi"]),
-            "eastward_transport": U.assign_attrs(_ATTRS["U"]),
-            "northward_transport": V.assign_attrs(_ATTRS["V"]),
-            "eastward_velocity": (U / depth).assign_attrs(_ATTRS["u"]),
-            "northward_velocity": (V / depth).assign_attrs(_ATTRS["v"]),
+            "barotropic_streamfunction": (psi / constants.SVERDRUP_IN_M3_S).assign_attrs(_ATTRS["psi"]),
+            "barotropic_eastward_transport": U.assign_attrs(_ATTRS["U"]),
+            "barotropic_northward_transport": V.assign_attrs(_ATTRS["V"]),
+            "barotropic_eastward_velocity": (U / depth).assign_attrs(_ATTRS["u"]),
+            "barotropic_northward_velocity": (V / depth).assign_attrs(_ATTRS["v"]),
             "sverdrup_residual": resid.assign_attrs(_ATTRS["resid"]),
             "land_mass": (dims, land, _ATTRS["land"]),
             "wind_stress_curl": c.where(xr.DataArray(ocean, dims=dims)).assign_attrs(
@@ -912,11 +912,11 @@ def solve_barotropic(
         # One point of each island carries its constant.
         first = [np.argwhere(land == k)[0] for k in range(1, op.n_islands + 1)]
         at = {d: xr.DataArray([p[i] for p in first], dims="island") for i, d in enumerate(dims)}
-        ds["island_streamfunction"] = ds.streamfunction.isel(at).drop_vars(
+        ds["island_streamfunction"] = ds.barotropic_streamfunction.isel(at).drop_vars(
             list(dims)).assign_coords(island=np.arange(1, op.n_islands + 1)).assign_attrs(
             long_name="streamfunction on each island", units="1e6 m3 s-1")
     ds = from_canonical(ds, lay, curl)
-    lazy = ds.streamfunction.chunks is not None
+    lazy = ds.barotropic_streamfunction.chunks is not None
     island_psi = (np.zeros(0) if not op.n_islands
                   else "see variable island_streamfunction" if lazy
                   else ds.island_streamfunction.values)
@@ -1029,8 +1029,8 @@ def boundary_current(
     ----------
     solution : xarray.Dataset
         Output of :func:`solve_barotropic` (ascending lat, increasing lon) or
-        :func:`solve_basin`, with ``streamfunction``, ``northward_transport``,
-        ``northward_velocity``, ``wind_stress_curl`` and ``beta``.
+        :func:`solve_basin`, with ``barotropic_streamfunction``, ``barotropic_northward_transport``,
+        ``barotropic_northward_velocity``, ``wind_stress_curl`` and ``beta``.
     bounds : (float, float), optional
         Western and eastern limits of the rows to search, in the units of the row coordinate
         (degrees_east, or m). Default: the whole row.
@@ -1050,10 +1050,10 @@ def boundary_current(
         no-slip Munk layer); ``peak_transport`` (1e6 m3 s-1): transport from the coast to there.
         ``interior_start`` (m): ``interior_offset`` times the edge distance, beyond the
         recirculation of a Munk layer.
-        ``boundary_transport`` (1e6 m3 s-1): net transport from the coast to the interior start.
-        ``interior_transport`` (1e6 m3 s-1): from the interior start to the eastern coast.
-        ``sverdrup_transport`` (1e6 m3 s-1): Sverdrup transport coast to coast, and
-        ``sverdrup_interior_transport`` over the same span as ``interior_transport``.
+        ``boundary_layer_transport`` (1e6 m3 s-1): net transport from the coast to the interior start.
+        ``solved_interior_transport`` (1e6 m3 s-1): from the interior start to the eastern coast.
+        ``sverdrup_transport_coast_to_coast`` (1e6 m3 s-1): Sverdrup transport coast to coast, and
+        ``sverdrup_transport_east_of_layer`` over the same span as ``solved_interior_transport``.
         ``interior_ratio``: interior over Sverdrup interior transport (1 in Sverdrup balance).
         Rows without a closed crossing, without a reversal or with ``beta = 0`` are NaN.
 
@@ -1065,7 +1065,7 @@ def boundary_current(
     transports of the solution add to the difference of the coastal values of psi, zero when
     both coasts are the main coast.
     """
-    for name in ("streamfunction", "northward_transport", "northward_velocity",
+    for name in ("barotropic_streamfunction", "barotropic_northward_transport", "barotropic_northward_velocity",
                  "wind_stress_curl", "beta"):
         if name not in solution:
             raise ValueError(
@@ -1073,15 +1073,15 @@ def boundary_current(
                 "Fix: pass the Dataset returned by solve_barotropic or solve_basin."
             )
     dims, hx, periodic = _row_positions(solution)
-    if set(solution["streamfunction"].dims) != set(dims):
+    if set(solution["barotropic_streamfunction"].dims) != set(dims):
         raise ValueError(
             f"solution: expected one (row, column) field with dims {dims}, found "
             f"{solution['streamfunction'].dims}. Fix: select one field, e.g. solution.isel(time=0)."
         )
     rho0 = solution.attrs.get("rho0", constants.RHO0) if rho0 is None else rho0
-    psi = solution["streamfunction"].transpose(*dims).values * constants.SVERDRUP
-    V = solution["northward_transport"].transpose(*dims).values
-    v = solution["northward_velocity"].transpose(*dims).values
+    psi = solution["barotropic_streamfunction"].transpose(*dims).values * constants.SVERDRUP_IN_M3_S
+    V = solution["barotropic_northward_transport"].transpose(*dims).values
+    v = solution["barotropic_northward_velocity"].transpose(*dims).values
     curl = solution["wind_stress_curl"].transpose(*dims).values
     beta = np.broadcast_to(solution["beta"].values.reshape(-1, 1), psi.shape)
     colc = solution[dims[1]].values
@@ -1090,8 +1090,8 @@ def boundary_current(
     inside = (colc >= lo) & (colc <= hi)
     names = ("western_coast", "eastern_coast", "peak_northward_velocity", "peak_distance",
              "efolding_width", "edge_distance", "peak_transport", "interior_start",
-             "boundary_transport", "interior_transport", "sverdrup_transport",
-             "sverdrup_interior_transport")
+             "boundary_layer_transport", "solved_interior_transport", "sverdrup_transport_coast_to_coast",
+             "sverdrup_transport_east_of_layer")
     out = {k: np.full(ny, np.nan) for k in names}
     for i in range(ny):
         ocean = np.isfinite(V[i]) & inside
@@ -1120,14 +1120,14 @@ def boundary_current(
         if not np.isfinite(edge):
             continue
         k_ext = int(np.argmax(s * pp[1:-1])) + 1
-        out["peak_transport"][i] = (pp[k_ext] - pp[0]) / constants.SVERDRUP
+        out["peak_transport"][i] = (pp[k_ext] - pp[0]) / constants.SVERDRUP_IN_M3_S
         start = interior_offset * edge
         out["interior_start"][i] = start
         k0 = int(np.searchsorted(dist, start))
         if k0 >= len(pp) - 1:
             continue
-        out["boundary_transport"][i] = (pp[k0] - pp[0]) / constants.SVERDRUP
-        out["interior_transport"][i] = (pp[-1] - pp[k0]) / constants.SVERDRUP
+        out["boundary_layer_transport"][i] = (pp[k0] - pp[0]) / constants.SVERDRUP_IN_M3_S
+        out["solved_interior_transport"][i] = (pp[-1] - pp[k0]) / constants.SVERDRUP_IN_M3_S
         b = beta[i][cols[1:-1]]
         if np.all(b > 0):
             # Cell widths of the ocean points; the end cells reach the walls, as in the solver.
@@ -1135,12 +1135,12 @@ def boundary_current(
             h[0] += 0.5 * (dist[1] - dist[0])
             h[-1] += 0.5 * (dist[-1] - dist[-2])
             c = curl[i][cols[1:-1]] / (rho0 * b) * h
-            out["sverdrup_transport"][i] = np.sum(c) / constants.SVERDRUP
+            out["sverdrup_transport_coast_to_coast"][i] = np.sum(c) / constants.SVERDRUP_IN_M3_S
             # From the point that starts the interior: the east half of its cell, then the rest.
             tail = c[k0 - 1:].copy()
             if k0 < len(pp) - 2:
                 tail[0] *= 0.5 * (dist[k0 + 1] - dist[k0]) / h[k0 - 1]
-            out["sverdrup_interior_transport"][i] = np.sum(tail) / constants.SVERDRUP
+            out["sverdrup_transport_east_of_layer"][i] = np.sum(tail) / constants.SVERDRUP_IN_M3_S
     row = dims[0]
     coords = {row: solution[row]}
     units = solution[dims[1]].attrs.get("units", "")
@@ -1163,17 +1163,17 @@ def boundary_current(
             "edge_distance": (row, out["edge_distance"],
                               dict(long_name="distance from the coast where the northward flow "
                                    "first reverses", units="m")),
-            "boundary_transport": (row, out["boundary_transport"],
+            "boundary_layer_transport": (row, out["boundary_layer_transport"],
                                    dict(long_name="net northward transport of the western "
                                         "boundary layer", units="1e6 m3 s-1")),
-            "interior_transport": (row, out["interior_transport"],
+            "solved_interior_transport": (row, out["solved_interior_transport"],
                                    dict(long_name="northward transport of the interior",
                                         units="1e6 m3 s-1")),
-            "sverdrup_transport": (row, out["sverdrup_transport"],
+            "sverdrup_transport_coast_to_coast": (row, out["sverdrup_transport_coast_to_coast"],
                                    dict(long_name="Sverdrup transport coast to coast",
                                         units="1e6 m3 s-1")),
-            "sverdrup_interior_transport": (
-                row, out["sverdrup_interior_transport"],
+            "sverdrup_transport_east_of_layer": (
+                row, out["sverdrup_transport_east_of_layer"],
                 dict(long_name="Sverdrup transport from the interior start to the eastern coast",
                      units="1e6 m3 s-1")),
             "peak_transport": (row, out["peak_transport"],
@@ -1185,7 +1185,7 @@ def boundary_current(
         },
         coords=coords,
     )
-    ds["interior_ratio"] = (ds.interior_transport / ds.sverdrup_interior_transport).assign_attrs(
+    ds["interior_ratio"] = (ds.solved_interior_transport / ds.sverdrup_transport_east_of_layer).assign_attrs(
         long_name="interior transport of the solution over the Sverdrup transport", units="1")
     return ds.assign_attrs(rho0=rho0, bounds=str(bounds))
 

@@ -149,8 +149,8 @@ def munk_boundary_layer(
     Returns
     -------
     xarray.Dataset
-        ``streamfunction`` (1e6 m3 s-1), ``northward_transport`` per unit width (m2 s-1) and
-        ``northward_velocity`` (m s-1) on ``x``; ``delta_M`` and the parameters in attrs.
+        ``barotropic_streamfunction`` (1e6 m3 s-1), ``barotropic_northward_transport`` per unit width (m2 s-1) and
+        ``barotropic_northward_velocity`` (m s-1) on ``x``; ``delta_M`` and the parameters in attrs.
 
     Notes
     -----
@@ -193,13 +193,13 @@ def munk_boundary_layer(
     shape = xr.DataArray(shape, coords={"x": xc}, dims="x")
     dshape = xr.DataArray(dshape, coords={"x": xc}, dims="x")
     psi_i = interior_streamfunction
-    psi = (psi_i * shape).rename("streamfunction")
-    vt = (psi_i * constants.SVERDRUP * dshape).rename("northward_transport")
+    psi = (psi_i * shape).rename("barotropic_streamfunction")
+    vt = (psi_i * constants.SVERDRUP_IN_M3_S * dshape).rename("barotropic_northward_transport")
     ds = xr.Dataset(
         {
-            "streamfunction": psi.assign_attrs(_PSI_ATTRS),
-            "northward_transport": vt.assign_attrs(_VT_ATTRS),
-            "northward_velocity": (vt / depth).assign_attrs(_VV_ATTRS),
+            "barotropic_streamfunction": psi.assign_attrs(_PSI_ATTRS),
+            "barotropic_northward_transport": vt.assign_attrs(_VT_ATTRS),
+            "barotropic_northward_velocity": (vt / depth).assign_attrs(_VV_ATTRS),
         }
     )
     return ds.assign_attrs(
@@ -261,8 +261,8 @@ def stommel_basin(
     Returns
     -------
     xarray.Dataset on (y, x)
-        ``streamfunction`` (1e6 m3 s-1), ``eastward_transport``/``northward_transport`` per
-        unit width (m2 s-1), ``eastward_velocity``/``northward_velocity`` (m s-1), the forcing
+        ``barotropic_streamfunction`` (1e6 m3 s-1), ``barotropic_eastward_transport``/``barotropic_northward_transport`` per
+        unit width (m2 s-1), ``barotropic_eastward_velocity``/``barotropic_northward_velocity`` (m s-1), the forcing
         ``eastward_wind_stress`` (Pa) and ``wind_stress_curl`` (N m-3); ``delta_S`` and the
         parameters in attrs.
 
@@ -323,11 +323,11 @@ def stommel_basin(
     dims = ("y", "x")
     ds = xr.Dataset(
         {
-            "streamfunction": (dims, psi / constants.SVERDRUP, _PSI_ATTRS),
-            "eastward_transport": (dims, U, _UT_ATTRS),
-            "northward_transport": (dims, V, _VT_ATTRS),
-            "eastward_velocity": (dims, U / depth, _UV_ATTRS),
-            "northward_velocity": (dims, V / depth, _VV_ATTRS),
+            "barotropic_streamfunction": (dims, psi / constants.SVERDRUP_IN_M3_S, _PSI_ATTRS),
+            "barotropic_eastward_transport": (dims, U, _UT_ATTRS),
+            "barotropic_northward_transport": (dims, V, _VT_ATTRS),
+            "barotropic_eastward_velocity": (dims, U / depth, _UV_ATTRS),
+            "barotropic_northward_velocity": (dims, V / depth, _VV_ATTRS),
             "eastward_wind_stress": (
                 "y",
                 tau,

@@ -7,15 +7,15 @@ import xarray as xr
 
 from .. import constants
 from ..geometry.coords import check_same_grid, require_dataarray
-from ..io.units import to_si
 from ..geometry.grid import SphericalGrid
+from ..io.units import to_si
 from .operators import curl_on_sphere
 
-__all__ = ["ekman", "DEFAULT_EQUATORIAL_BAND"]
+__all__ = ["ekman", "DEFAULT_EQUATORIAL_HALF_WIDTH"]
 
 #: Half-width in degrees of the band around the equator where f -> 0 and the Ekman (and
 #: Sverdrup) balances are not used (common practice: 2 to 5 degrees).
-DEFAULT_EQUATORIAL_BAND = 3.0
+DEFAULT_EQUATORIAL_HALF_WIDTH = 3.0
 
 
 def _band_reason(band: float) -> str:
@@ -30,7 +30,7 @@ def ekman(
     tauy,
     *,
     rho0: float = constants.RHO0,
-    equatorial_band: float = DEFAULT_EQUATORIAL_BAND,
+    equatorial_half_width: float = DEFAULT_EQUATORIAL_HALF_WIDTH,
     radius: float = constants.EARTH_RADIUS,
     omega: float = constants.OMEGA,
 ) -> xr.Dataset:
@@ -43,7 +43,7 @@ def ekman(
         same grid, missing on land. Leading dimensions pass through.
     rho0 : float, optional
         Reference sea-water density, kg m-3.
-    equatorial_band : float, optional
+    equatorial_half_width : float, optional
         Half-width in degrees of the band around the equator that is left missing. Must be
         positive: at the equator f = 0 and the transports are infinite.
     radius, omega : float, optional
@@ -77,10 +77,10 @@ def ekman(
     taux = require_dataarray(taux, "taux")
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
-    if not np.isfinite(equatorial_band) or equatorial_band <= 0:
+    if not np.isfinite(equatorial_half_width) or equatorial_half_width <= 0:
         raise ValueError(
             f"equatorial_band: expected a positive half-width in degrees, found "
-            f"{equatorial_band!r}. Fix: pass e.g. equatorial_band=3.0."
+            f"{equatorial_half_width!r}. Fix: pass e.g. equatorial_half_width=3.0."
         )
     if not rho0 > 0:
         raise ValueError(f"rho0: expected a positive density in kg m-3, found {rho0!r}.")
@@ -90,12 +90,12 @@ def ekman(
     ty = to_si(tauy, "stress", argname="tauy", default="Pa").astype(np.float64)
 
     lat = taux[lay.lat_name].astype(np.float64)
-    f = (2.0 * omega * np.sin(np.deg2rad(lat))).where(np.abs(lat) >= equatorial_band)
+    f = (2.0 * omega * np.sin(np.deg2rad(lat))).where(np.abs(lat) >= equatorial_half_width)
     ue = ty / (rho0 * f)
     ve = -tx / (rho0 * f)
     pump = curl_on_sphere(tx / (rho0 * f), ty / (rho0 * f), grid=grid, names=("taux", "tauy"))
-    reason = _band_reason(equatorial_band)
-    common = dict(rho0=rho0, equatorial_band=equatorial_band, comment=reason)
+    reason = _band_reason(equatorial_half_width)
+    common = dict(rho0=rho0, equatorial_half_width=equatorial_half_width, comment=reason)
     out = xr.Dataset(
         {
             "ekman_eastward_transport": ue.assign_attrs(
@@ -117,6 +117,6 @@ def ekman(
     )
     return out.assign_attrs(
         title="Ekman transport and pumping",
-        equatorial_band=equatorial_band,
+        equatorial_half_width=equatorial_half_width,
         rho0=rho0,
     )

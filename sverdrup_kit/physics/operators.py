@@ -6,10 +6,10 @@ import xarray as xr
 
 from .. import constants
 from .._apply import apply_grid_kernel
-from ..geometry.coords import check_same_grid, from_canonical, require_dataarray, to_canonical
 from .._compiled.dispatch import curl_kernel
-from ..io.units import to_si
+from ..geometry.coords import check_same_grid, from_canonical, require_dataarray, to_canonical
 from ..geometry.grid import SphericalGrid
+from ..io.units import to_si
 
 __all__ = ["wind_stress_curl", "curl_on_sphere"]
 

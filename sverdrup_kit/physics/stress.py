@@ -22,6 +22,7 @@ import xarray as xr
 
 from .. import constants
 from .._apply import apply_grid_kernel
+from ..errors import MonthlyMeanWindWarning
 from ..geometry.coords import check_same_grid, require_dataarray
 from ..io.units import to_si
 
@@ -44,9 +45,6 @@ LY_MIN_SPEED = 0.5
 #: linearly without bound either (Large & Yeager 2009 cap theirs at 33 m/s).
 LP_MAX_SPEED = 25.0
 
-
-class MonthlyMeanWindWarning(UserWarning):
-    """Winds that look like monthly (or longer) means were fed to the quadratic bulk formula."""
 
 
 # --- the laws: plain NumPy on speeds in m s-1, float64, NaN already set for invalid speeds ---
@@ -160,7 +158,7 @@ _LAWS = (
     ),
 )
 
-#: The drag laws by name (read-only). ``drag=`` in this module takes one of these keys or a
+#: The drag laws by name (read-only). ``drag_law=`` in this module takes one of these keys or a
 #: constant drag coefficient.
 DRAG_LAWS = MappingProxyType({law.name: law for law in _LAWS})
 
@@ -188,24 +186,24 @@ def _resolve_drag(drag) -> DragLaw:
         if key in DRAG_LAWS:
             return DRAG_LAWS[key]
         close = difflib.get_close_matches(key, DRAG_LAWS, n=1)
-        hint = f"drag='{close[0]}'" if close else "drag='large-pond-1981'"
+        hint = f"drag_law='{close[0]}'" if close else "drag_law='large-pond-1981'"
         raise ValueError(
-            f"drag: expected one of {list(DRAG_LAWS)} or a constant drag coefficient such as "
+            f"drag_law: expected one of {list(DRAG_LAWS)} or a constant drag coefficient such as "
             f"1.3e-3, found '{drag}'. Fix: pass e.g. {hint}."
         )
     if isinstance(drag, (int, float, np.integer, np.floating)) and not isinstance(drag, bool):
         cd = float(drag)
         if not (math.isfinite(cd) and 0.0 < cd < _MAX_CONSTANT_CD):
-            hint = f"drag={cd * 1e-3:g}" if 0.1 < cd < 10.0 else "drag=1.3e-3"
+            hint = f"drag_law={cd * 1e-3:g}" if 0.1 < cd < 10.0 else "drag_law=1.3e-3"
             raise ValueError(
-                f"drag: expected a constant drag coefficient between 0 and {_MAX_CONSTANT_CD:g} "
+                f"drag_law: expected a constant drag coefficient between 0 and {_MAX_CONSTANT_CD:g} "
                 f"(dimensionless; typical values are 1e-3 to 2.5e-3), found {drag!r}. "
                 f"Fix: pass e.g. {hint} (a value of 1.3 usually means 1e3 Cd)."
             )
         return _constant_law(cd)
     raise TypeError(
-        f"drag: expected a drag-law name {list(DRAG_LAWS)} or a number, found "
-        f"{type(drag).__name__}. Fix: pass e.g. drag='large-pond-1981' or drag=1.3e-3."
+        f"drag_law: expected a drag-law name {list(DRAG_LAWS)} or a number, found "
+        f"{type(drag).__name__}. Fix: pass e.g. drag_law='large-pond-1981' or drag_law=1.3e-3."
     )
 
 
@@ -233,7 +231,7 @@ def _cd_dataarray(speed_si: xr.DataArray, law: DragLaw) -> xr.DataArray:
     return cd.rename("drag_coefficient").assign_attrs(_cd_attrs(law))
 
 
-def drag_coefficient(speed, *, drag="large-pond-1981"):
+def drag_coefficient(speed, *, drag_law="large-pond-1981"):
     r"""Neutral 10 m drag coefficient of a published drag law, dimensionless.
 
     Parameters
@@ -242,7 +240,7 @@ def drag_coefficient(speed, *, drag="large-pond-1981"):
         10 m neutral wind speed. NumPy and dask input is in m s-1. A DataArray may carry any
         speed unit that :mod:`sverdrup_kit.io.units` knows (m s-1, M/S, knots, cm s-1, ...); one
         with no ``units`` attribute is taken as m s-1. Negative or missing speeds give NaN.
-    drag : str or float, optional
+    drag_law : str or float, optional
         A key of :data:`DRAG_LAWS` -- ``"large-pond-1981"`` (default),
         ``"large-pond-1981-continuous"``, ``"trenberth-1990"``, ``"large-yeager-2004"``,
         ``"large-yeager-2009"`` -- or a constant drag coefficient (e.g. ``1.3e-3``), or a
@@ -297,10 +295,10 @@ def drag_coefficient(speed, *, drag="large-pond-1981"):
     --------
     >>> print(f"{drag_coefficient(15.0):.4g}")
     0.001465
-    >>> print(f"{drag_coefficient(15.0, drag='large-yeager-2004'):.4g}")
+    >>> print(f"{drag_coefficient(15.0, drag_law='large-yeager-2004'):.4g}")
     0.001468
     """
-    law = _resolve_drag(drag)
+    law = _resolve_drag(drag_law)
     if isinstance(speed, xr.DataArray):
         s = to_si(speed, "speed", argname="speed", default="m s-1").astype(np.float64)
         return _cd_dataarray(s, law)
@@ -413,9 +411,9 @@ def wind_stress(
     u,
     v,
     *,
-    drag="large-pond-1981",
+    drag_law="large-pond-1981",
     air_density: float = constants.AIR_DENSITY,
-    speed=None,
+    wind_speed=None,
 ) -> xr.Dataset:
     r"""Surface wind stress from 10 m winds by the bulk formula, Pa.
 
@@ -426,12 +424,12 @@ def wind_stress(
         :mod:`sverdrup_kit.io.units` knows (m s-1, m/s, M/S, knots, cm s-1, ...). A field with no
         ``units`` attribute is taken as m s-1. Missing values (land) stay missing. Any leading
         dimensions (time, member) pass through; no latitude or longitude is needed.
-    drag : str or float, optional
+    drag_law : str or float, optional
         Drag law: a key of :data:`DRAG_LAWS` or a constant drag coefficient; see
         :func:`drag_coefficient`. Default ``"large-pond-1981"``.
     air_density : float, optional
         Air density in kg m-3 (default 1.22, common practice).
-    speed : xarray.DataArray, optional
+    wind_speed : xarray.DataArray, optional
         Scalar-mean wind speed :math:`S = \overline{|\mathbf u|}` on the same grid as ``u``,
         as carried by monthly wind climatologies, in a speed unit. When given, it replaces
         :math:`|\overline{\mathbf u}|` in both the drag law and the formula. It should not be
@@ -448,7 +446,7 @@ def wind_stress(
     Warns
     -----
     MonthlyMeanWindWarning
-        Once per call, when ``speed`` is not given and the winds look like monthly or longer
+        Once per call, when ``wind_speed`` is not given and the winds look like monthly or longer
         means: a time coordinate spaced 27 days or more, CF climatology bounds, a 12-step time
         axis with no dates, or attributes that say so (``monthly``, ``climatology``,
         ``cell_methods`` with a one-month interval, ...).
@@ -456,7 +454,7 @@ def wind_stress(
     Raises
     ------
     TypeError
-        ``u``, ``v`` or ``speed`` is not a DataArray.
+        ``u``, ``v`` or ``wind_speed`` is not a DataArray.
     sverdrup_kit.geometry.coords.GridError
         The fields are not on the same grid.
     sverdrup_kit.io.units.UnitsError
@@ -467,14 +465,14 @@ def wind_stress(
     Notes
     -----
     .. math:: (\tau_x, \tau_y) = \rho_a\, C_D(W)\, W\, (u, v), \qquad
-              W = \sqrt{u^2 + v^2} \ \text{or}\ W = S \ \text{when ``speed`` is given.}
+              W = \sqrt{u^2 + v^2} \ \text{or}\ W = S \ \text{when ``wind_speed`` is given.}
 
     The stress is quadratic in the wind, so the stress of a time-mean wind underestimates the
     time mean of the stress: by up to about 20% at mid and high latitudes for monthly means
     (Rosen & Ponte 2003), and an effective drag coefficient can only correct that to about 10%
     (Trenberth, Large & Olson 1989). For isotropic Gaussian fluctuations of standard deviation
     :math:`s` about a mean :math:`U \gg s`, :math:`\langle|\mathbf u|u\rangle/U^2 \approx
-    1 + 1.5\,s^2/U^2` (1.13 at U = 10, s = 3 m s-1). Passing the scalar-mean speed recovers
+    1 + 1.5\,s^2/U^2` (1.13 at U = 10, s = 3 m s-1). Passing the scalar-mean wind speed recovers
     about a third of that in the same model (:math:`SU \approx U^2(1 + 0.5\,s^2/U^2)`), and
     more where the wind turns often and the mean vector is short. The best remedy is to
     compute stress from 6-hourly or daily winds and average it.
@@ -492,14 +490,14 @@ def wind_stress(
     u = require_dataarray(u, "u")
     v = require_dataarray(v, "v")
     check_same_grid(u, v, ("u", "v"))
-    law = _resolve_drag(drag)
+    law = _resolve_drag(drag_law)
     rho = _check_air_density(air_density)
-    if speed is not None:
-        speed = require_dataarray(speed, "speed")
-        check_same_grid(u, speed, ("u", "speed"))
+    if wind_speed is not None:
+        wind_speed = require_dataarray(wind_speed, "wind_speed")
+        check_same_grid(u, wind_speed, ("u", "wind_speed"))
     us = to_si(u, "speed", argname="u", default="m s-1").astype(np.float64)
     vs = to_si(v, "speed", argname="v", default="m s-1").astype(np.float64)
-    if speed is None:
+    if wind_speed is None:
         reason = _time_mean_reason(u, v)
         if reason is not None:
             warnings.warn(
@@ -507,7 +505,7 @@ def wind_stress(
                 "underestimates the mean stress, by up to about 20% at mid and high latitudes "
                 "(Rosen & Ponte 2003); an effective drag coefficient is only good to about 10% "
                 "(Trenberth et al. 1989). Fix: compute stress from 6-hourly or daily winds and "
-                "average it, or pass the scalar-mean wind speed as speed=; to accept the bias, "
+                "average it, or pass the scalar-mean wind speed as wind_speed=; to accept the bias, "
                 "filter MonthlyMeanWindWarning.",
                 MonthlyMeanWindWarning,
                 stacklevel=2,
@@ -515,8 +513,8 @@ def wind_stress(
         w = np.hypot(us, vs)
         used = "magnitude of the (u, v) given"
     else:
-        w = to_si(speed, "speed", argname="speed", default="m s-1").astype(np.float64)
-        used = "scalar-mean wind speed from the speed argument"
+        w = to_si(wind_speed, "speed", argname="wind_speed", default="m s-1").astype(np.float64)
+        used = "scalar-mean wind speed from the wind_speed argument"
     k = rho * _cd_dataarray(w, law) * w
     taux = (k * us).assign_attrs(
         standard_name="surface_downward_eastward_stress",

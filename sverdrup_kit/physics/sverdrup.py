@@ -13,16 +13,8 @@ import xarray as xr
 
 from .. import constants
 from .._apply import apply_grid_kernel, whole_fields
-from ..geometry.coords import (
-    GridLayout,
-    check_same_grid,
-    from_canonical,
-    require_dataarray,
-    to_canonical,
-)
 from .._compiled.dispatch import fill_from_neighbours, westward_scan
 from .._compiled.scan import sign_changes, sum_groups
-from ..io.units import to_si
 from ..geometry.basins import (
     CELL_CLASS,
     CONTINENT_MIN_AREA,
@@ -38,11 +30,19 @@ from ..geometry.basins import (
     classify_land,
     plan_rows,
 )
-from .ekman import DEFAULT_EQUATORIAL_BAND
+from ..geometry.coords import (
+    GridLayout,
+    check_same_grid,
+    from_canonical,
+    require_dataarray,
+    to_canonical,
+)
 from ..geometry.grid import SphericalGrid
+from ..io.units import to_si
+from .ekman import DEFAULT_EQUATORIAL_HALF_WIDTH
 from .operators import curl_on_sphere
 
-__all__ = ["sverdrup"]
+__all__ = ["sverdrup_transport"]
 
 SV_UNITS = "1e6 m3 s-1"
 
@@ -65,7 +65,7 @@ def _scan_kernel(v, *, dx, cells, run_starts, group_runs, group_starts, group_sl
     ny = v.shape[-2]
     t = sum_groups(totals, group_runs, group_starts, group_slot, n_basins * ny)
     t = t.reshape(t.shape[:-1] + (n_basins, ny))
-    return psi / constants.SVERDRUP, t / constants.SVERDRUP
+    return psi / constants.SVERDRUP_IN_M3_S, t / constants.SVERDRUP_IN_M3_S
 
 
 def _check_positive(value, name, *, allow_zero=False, fix=""):
@@ -86,19 +86,19 @@ def _ocean_from(taux, tauy, ocean_mask, layout):
     return np.asarray(to_canonical(seen, layout).transpose(lat, lon).values, dtype=bool)
 
 
-def sverdrup(
+def sverdrup_transport(
     taux,
     tauy,
     *,
     ocean_mask=None,
     basins=None,
     rho0: float = constants.RHO0,
-    equatorial_band: float = DEFAULT_EQUATORIAL_BAND,
-    island_min_area: float = ISLAND_MIN_AREA,
-    continent_min_area: float = CONTINENT_MIN_AREA,
-    min_width: float = MIN_WIDTH,
+    equatorial_half_width: float = DEFAULT_EQUATORIAL_HALF_WIDTH,
+    island_min_area_km2: float = ISLAND_MIN_AREA,
+    continent_min_area_km2: float = CONTINENT_MIN_AREA,
+    min_width_km: float = MIN_WIDTH,
     fill_gaps: bool = True,
-    max_crossings: int = 8,
+    max_gyre_boundaries: int = 8,
     radius: float = constants.EARTH_RADIUS,
     omega: float = constants.OMEGA,
 ) -> xr.Dataset:
@@ -118,7 +118,7 @@ def sverdrup(
     basins : None, "earth", xarray.DataArray or dict, optional
         ``None``: connected ocean regions of the mask (faces only, longitude wrapping on a
         global grid), named ``basin_0``, ``basin_1``, ... by decreasing area; water bodies
-        smaller than ``island_min_area`` are left out. Where two oceans larger than
+        smaller than ``island_min_area_km2`` are left out. Where two oceans larger than
         :data:`~sverdrup_kit.geometry.basins.SEPARATE_OCEAN_AREA` (1e7 km2) meet beyond a continent's
         tip they become separate basins, and the rows beyond the tip a third; smaller branches
         (gulfs) stay with the ocean they open into. Oceans joined through an archipelago (the
@@ -139,29 +139,29 @@ def sverdrup(
         polygon that contains its centre).
     rho0 : float, optional
         Reference sea-water density, kg m-3.
-    equatorial_band : float, optional
+    equatorial_half_width : float, optional
         Half-width in degrees of the band around the equator left empty (f -> 0), the same
         default as :func:`~sverdrup_kit.physics.ekman.ekman`.
-    island_min_area : float, optional
+    island_min_area_km2 : float, optional
         km2. Land bodies smaller than this are *small islands*: the integral runs across them
         with the stress filled in from the surrounding ocean (nearest-ocean averaging), so
         they add the transport of the interpolated wind over their width. Larger land bodies
-        end a run; a *large island* (below ``continent_min_area``) starts a new run at its
+        end a run; a *large island* (below ``continent_min_area_km2``) starts a new run at its
         western coast, and that run counts in the basin's interior transport.
-    continent_min_area : float, optional
+    continent_min_area_km2 : float, optional
         km2. Land bodies at least this large, and land cut by the edge of a regional grid,
         are continents: a run of the same basin row that is separated from the widest run by
         a continent (a gulf behind a peninsula, an enclosed sea) is a *marginal sea*, given
         its own streamfunction but not counted.
-    min_width : float, optional
+    min_width_km : float, optional
         km. Rows whose counted ocean is narrower are left empty (``too_narrow``).
     fill_gaps : bool, optional
         Fill stress missing in single time steps inside the ocean (ship-based climatologies
         have unobserved cells) and in ocean cells of ``ocean_mask`` where the stress has no
         value (a topographic mask on a coarse stress grid) by nearest-ocean averaging before
         the curl. With ``False`` such gaps stay missing and spoil the rows they lie on.
-    max_crossings : int, optional
-        Length of the ``crossing`` dimension of ``gyre_boundary_lat``.
+    max_gyre_boundaries : int, optional
+        Length of the ``gyre_boundary`` dimension of ``gyre_boundary_lat``.
     radius, omega : float, optional
         Earth radius (m) and rotation rate (rad s-1).
 
@@ -171,14 +171,14 @@ def sverdrup(
         On the input grid and order, float64, lazy where the input is:
 
         - ``wind_stress_curl`` (..., lat, lon), N m-3, of the gap-filled stress;
-        - ``meridional_transport`` (..., lat, lon), m2 s-1: :math:`V`, also on small islands;
+        - ``sverdrup_northward_transport`` (..., lat, lon), m2 s-1: :math:`V`, also on small islands;
         - ``streamfunction`` (..., lat, lon), 1e6 m3 s-1, zero at each eastern coast;
         - ``interior_transport`` (..., basin, lat), 1e6 m3 s-1, positive northward;
         - ``boundary_current_transport`` (..., basin, lat) = ``-interior_transport``;
-        - ``gyre_boundary_lat`` (..., basin, crossing) and ``gyre_boundary_count``
+        - ``gyre_boundary_lat`` (..., basin, gyre_boundary) and ``gyre_boundary_count``
           (..., basin): latitudes where the interior transport changes sign;
         - ``basin_id`` (lat, lon), ``integration_class`` (lat, lon), ``row_status``
-          (basin, lat), ``eastern_boundary_lon`` and ``western_boundary_lon`` (basin, lat).
+          (basin, lat), ``eastern_coast_lon`` and ``western_coast_lon`` (basin, lat).
 
         Rows left empty are NaN, with the reason in ``row_status`` (CF flags) and in the attrs.
 
@@ -209,7 +209,7 @@ def sverdrup(
     islands only are counted with it, runs cut off by a continent are marginal seas. A row is
     left empty when it lies in the equatorial band, when its ocean wraps all the way round or
     its eastern end opens on another basin (no eastern coast), when its western end opens on
-    another basin (no western coast), or when it is narrower than ``min_width``.
+    another basin (no western coast), or when it is narrower than ``min_width_km``.
 
     Examples
     --------
@@ -222,10 +222,10 @@ def sverdrup(
     >>> tau = -0.1 * np.cos(np.deg2rad(4.5 * (lat[:, None] - 15)))
     >>> taux = xr.DataArray(np.where(ocean, tau, np.nan), coords={"lat": lat, "lon": lon},
     ...                     dims=("lat", "lon"), attrs={"units": "Pa"})
-    >>> ds = sverdrup(taux, 0 * taux)
+    >>> ds = sverdrup_transport(taux, 0 * taux)
     >>> ds.interior_transport.sel(basin="basin_0", lat=31.0).round(1).item()
     -19.8
-    >>> ds.gyre_boundary_lat.sel(basin="basin_0", crossing=0).round(1).item()
+    >>> ds.gyre_boundary_lat.sel(basin="basin_0", gyre_boundary=0).round(1).item()
     51.5
 
     References
@@ -239,19 +239,19 @@ def sverdrup(
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
     _check_positive(rho0, "rho0", fix="Fix: e.g. rho0=1025.0 (kg m-3).")
-    _check_positive(equatorial_band, "equatorial_band", allow_zero=True,
+    _check_positive(equatorial_half_width, "equatorial_half_width", allow_zero=True,
                     fix="Fix: a half-width in degrees, e.g. 3.0.")
-    _check_positive(island_min_area, "island_min_area", allow_zero=True,
+    _check_positive(island_min_area_km2, "island_min_area_km2", allow_zero=True,
                     fix="Fix: an area in km2, e.g. 1e5; 0 treats every island as large.")
-    _check_positive(min_width, "min_width", allow_zero=True, fix="Fix: a width in km.")
-    if not (np.isfinite(continent_min_area) and continent_min_area >= island_min_area):
+    _check_positive(min_width_km, "min_width_km", allow_zero=True, fix="Fix: a width in km.")
+    if not (np.isfinite(continent_min_area_km2) and continent_min_area_km2 >= island_min_area_km2):
         raise ValueError(
-            f"continent_min_area: expected a number of km2 >= island_min_area "
-            f"({island_min_area:g}), found {continent_min_area!r}. Fix: e.g. 5e6."
+            f"continent_min_area_km2: expected a number of km2 >= island_min_area_km2 "
+            f"({island_min_area_km2:g}), found {continent_min_area_km2!r}. Fix: e.g. 5e6."
         )
-    if not (isinstance(max_crossings, (int, np.integer)) and max_crossings >= 1):
+    if not (isinstance(max_gyre_boundaries, (int, np.integer)) and max_gyre_boundaries >= 1):
         raise ValueError(
-            f"max_crossings: expected a positive integer, found {max_crossings!r}. Fix: e.g. 8."
+            f"max_gyre_boundaries: expected a positive integer, found {max_gyre_boundaries!r}. Fix: e.g. 8."
         )
 
     grid0 = SphericalGrid.from_data(taux, argname="taux", radius=radius, omega=omega)
@@ -267,17 +267,17 @@ def sverdrup(
     # Geometry: once per call, from grid and mask alone.
     ocean = _ocean_from(taux, tauy, ocean_mask, lay)
     cls, land_labels = classify_land(
-        ocean, grid, island_min_area=island_min_area, continent_min_area=continent_min_area
+        ocean, grid, island_min_area_km2=island_min_area_km2, continent_min_area_km2=continent_min_area_km2
     )
     water = cls <= SMALL_ISLAND
     bid, names, coast_e = assign_basins(
-        basins, water, grid, lay, taux, cls, land_labels, min_area=island_min_area
+        basins, water, grid, lay, taux, cls, land_labels, min_area=island_min_area_km2
     )
     nb = len(names)
-    band = grid.equatorial_band(equatorial_band) if equatorial_band > 0 else np.zeros(
+    band = grid.equatorial_mask(equatorial_half_width) if equatorial_half_width > 0 else np.zeros(
         grid.lat.size, dtype=bool)
     plan = plan_rows(bid, cls, land_labels, grid, n_basins=nb, equatorial=band,
-                     min_width_km=min_width, coast_e=coast_e)
+                     min_width_km=min_width_km, coast_e=coast_e)
 
     # Per time step: fill, curl, V, scan.
     keep_missing = (cls == OCEAN) if not fill_gaps else np.zeros_like(water)
@@ -309,17 +309,17 @@ def sverdrup(
         sign_changes,
         transport,
         input_core_dims=[["basin", lat]],
-        output_core_dims=[["basin", "crossing"], ["basin"]],
+        output_core_dims=[["basin", "gyre_boundary"], ["basin"]],
         dask="parallelized",
         output_dtypes=[np.float64, np.int64],
-        dask_gufunc_kwargs={"output_sizes": {"crossing": max_crossings}},
-        kwargs=dict(lat=grid.lat, valid=plan.row_status == 0, max_crossings=max_crossings),
+        dask_gufunc_kwargs={"output_sizes": {"gyre_boundary": max_gyre_boundaries}},
+        kwargs=dict(lat=grid.lat, valid=plan.row_status == 0, max_gyre_boundaries=max_gyre_boundaries),
     )
 
     ds = _assemble(
         curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
-        taux, rho0=rho0, band=equatorial_band, island_min_area=island_min_area,
-        continent_min_area=continent_min_area, min_width=min_width, fill_gaps=fill_gaps,
+        taux, rho0=rho0, band=equatorial_half_width, island_min_area_km2=island_min_area_km2,
+        continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km, fill_gaps=fill_gaps,
         given_mask=ocean_mask is not None,
     )
     return ds
@@ -342,7 +342,7 @@ def _to_user_lon(x, original_lon):
 
 
 def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
-              original, *, rho0, band, island_min_area, continent_min_area, min_width,
+              original, *, rho0, band, island_min_area_km2, continent_min_area_km2, min_width_km,
               fill_gaps, given_mask):
     lat, lon = lay.lat_name, lay.lon_name
     hw = (lat, lon)
@@ -360,13 +360,13 @@ def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid,
                 comment="vertical component of the curl of the surface stress on the sphere, "
                 "after gaps and small islands were filled by nearest-ocean averaging",
             ),
-            "meridional_transport": v.assign_attrs(
+            "sverdrup_northward_transport": v.assign_attrs(
                 long_name="Sverdrup meridional transport per unit width", units="m2 s-1",
                 comment="depth-integrated, V = curl(tau) / (rho0 beta); missing on land and in "
                 f"the equatorial band |lat| < {band:g} degrees; present on small islands, "
                 "where the stress is interpolated",
             ),
-            "streamfunction": psi.assign_attrs(
+            "sverdrup_streamfunction": psi.assign_attrs(
                 long_name="Sverdrup transport streamfunction", units=SV_UNITS,
                 comment="at cell centres, psi_i = -(sum of V dx over the cells east of i in its "
                 "run + V_i dx_i / 2): zero at the eastern face of each run (an eastern coast), "
@@ -393,7 +393,7 @@ def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid,
             ),
             "gyre_boundary_count": count.assign_attrs(
                 long_name="number of sign changes of the interior transport", units="1",
-                comment="may exceed the length of the crossing dimension",
+                comment="may exceed the length of the gyre_boundary dimension",
             ),
             "basin_id": (hw, bid.astype(np.int32), basin_id_attrs(names)),
             "integration_class": (hw, plan.cell_class, {
@@ -404,12 +404,12 @@ def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid,
                 "long_name": "status of the Sverdrup interior transport of each basin row",
                 **_flag_attrs(ROW_STATUS),
             }),
-            "eastern_boundary_lon": (("basin", lat), _to_user_lon(plan.east_lon, user_lon), {
+            "eastern_coast_lon": (("basin", lat), _to_user_lon(plan.east_lon, user_lon), {
                 "long_name": "longitude of the eastern coast where the integral starts",
                 "units": "degrees_east",
                 "comment": "cell face; NaN where the row has no eastern coast or no ocean",
             }),
-            "western_boundary_lon": (("basin", lat), _to_user_lon(plan.west_lon, user_lon), {
+            "western_coast_lon": (("basin", lat), _to_user_lon(plan.west_lon, user_lon), {
                 "long_name": "longitude of the western boundary where the integral ends",
                 "units": "degrees_east",
                 "comment": "cell face; where a row is split by large islands, the western face "
@@ -421,10 +421,10 @@ def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid,
     ds = from_canonical(ds, lay, original)
     ds.attrs.update(
         rho0=rho0,
-        equatorial_band=band,
-        island_min_area_km2=island_min_area,
-        continent_min_area_km2=continent_min_area,
-        min_width_km=min_width,
+        equatorial_half_width=band,
+        island_min_area_km2=island_min_area_km2,
+        continent_min_area_km2=continent_min_area_km2,
+        min_width_km=min_width_km,
         fill_gaps=int(bool(fill_gaps)),
         land_mask_from="ocean_mask argument" if given_mask else "missing stress values",
         small_islands="integrated across, with stress filled by nearest-ocean averaging",

@@ -704,7 +704,7 @@ def map_curl(data, **kw):
     return map_field(da, **kw)
 
 
-def map_ekman_pumping(data, *, equatorial_band=None, limits_poleward_of: float = 10.0, **kw):
+def map_ekman_pumping(data, *, equatorial_half_width=None, limits_poleward_of: float = 10.0, **kw):
     """Map Ekman pumping in m yr-1 (positive upward), the equatorial band shaded and named.
 
     Parameters
@@ -712,7 +712,7 @@ def map_ekman_pumping(data, *, equatorial_band=None, limits_poleward_of: float =
     data : xarray.Dataset or xarray.DataArray
         The Dataset from :func:`~sverdrup_kit.physics.ekman.ekman` (or one holding ``ekman_pumping``),
         or the ``ekman_pumping`` DataArray, in m s-1.
-    equatorial_band : float, optional
+    equatorial_half_width : float, optional
         Half-width in degrees of the band left empty (default: the data's attrs, else 3).
         Ocean cells there are shaded and named.
     limits_poleward_of : float
@@ -728,7 +728,7 @@ def map_ekman_pumping(data, *, equatorial_band=None, limits_poleward_of: float =
     """
     da = _pick(data, ("ekman_pumping",), "data")
     ds = data if isinstance(data, xr.Dataset) else None
-    band = _equatorial_band(data if ds is not None else da, equatorial_band)
+    band = _equatorial_band(data if ds is not None else da, equatorial_half_width)
     kw.setdefault("cmap", cmocean.cm.delta)
     kw.setdefault("to_per_year", True)
     kw.setdefault("missing_label", f"{_REASONS['equatorial_band'].label}, |lat| < {band:g}\u00b0")
@@ -775,9 +775,9 @@ def _equatorial_band(obj, given) -> float:
     if given is not None:
         return float(given)
     for attrs in (obj.attrs, *(v.attrs for v in getattr(obj, "data_vars", {}).values())):
-        if "equatorial_band" in attrs:
+        if "equatorial_half_width" in attrs:
             try:
-                return float(attrs["equatorial_band"])
+                return float(attrs["equatorial_half_width"])
             except (TypeError, ValueError):
                 continue
     return 3.0
@@ -877,9 +877,9 @@ def map_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean", wi
     Parameters
     ----------
     data : xarray.Dataset
-        From :func:`~sverdrup_kit.physics.sverdrup.sverdrup`: ``streamfunction`` (1e6 m3 s-1) and, when
+        From :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`: ``streamfunction`` (1e6 m3 s-1) and, when
         present, ``row_status`` (basin, lat) with CF flags, ``basin_id`` (lat, lon),
-        ``western_boundary_lon`` (basin, lat) and ``wind_stress_curl`` (its finite cells are the
+        ``western_coast_lon`` (basin, lat) and ``wind_stress_curl`` (its finite cells are the
         ocean). For a bare streamfunction DataArray only the equatorial band between cells
         with values is shaded (as "no Sverdrup solution").
     boundary_zone_km : float
@@ -895,7 +895,7 @@ def map_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean", wi
     -------
     fig, ax
     """
-    psi = _reduce_time(_pick(data, ("streamfunction",), "data"), time, "streamfunction")
+    psi = _reduce_time(_pick(data, ("sverdrup_streamfunction",), "data"), time, "sverdrup_streamfunction")
     ds = data if isinstance(data, xr.Dataset) else xr.Dataset()
     if not np.isfinite(boundary_zone_km) or boundary_zone_km < 0:
         raise ValueError(
@@ -971,7 +971,7 @@ def _not_valid_cells(ds, lay, ocean_da, boundary_zone_km):
         else:
             out["no_eastern_coast"] = [whole_row, _REASONS["no_eastern_coast"]]
         out["outside"] = [unclaimed & ~whole_row, _REASONS["outside"]]
-    if boundary_zone_km > 0 and "western_boundary_lon" in ds:
+    if boundary_zone_km > 0 and "western_coast_lon" in ds:
         zone = _boundary_zone(ds, lay, bid, cell_status, meanings, boundary_zone_km)
         out["boundary_zone"] = [zone, _BOUNDARY_ZONE]
     return [tuple(v) for v in out.values()]
@@ -979,7 +979,7 @@ def _not_valid_cells(ds, lay, ocean_da, boundary_zone_km):
 
 def _boundary_zone(ds, lay, bid, cell_status, meanings, km):
     valid_values = [v for v, m in meanings.items() if m in ("valid", "ok")]
-    wb = ds["western_boundary_lon"].transpose("basin", ...)
+    wb = ds["western_coast_lon"].transpose("basin", ...)
     lat_dim = [d for d in wb.dims if d != "basin"][0]
     zone = np.zeros(bid.shape, dtype=bool)
     lon = lay.lon
@@ -1059,7 +1059,7 @@ def plot_transport(data, *, basins=None, observations=None, time="mean", width="
     Parameters
     ----------
     data : xarray.Dataset
-        From :func:`~sverdrup_kit.physics.sverdrup.sverdrup`: ``interior_transport`` (basin, lat) in
+        From :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`: ``interior_transport`` (basin, lat) in
         1e6 m3 s-1, ``boundary_current_transport`` (optional) and ``row_status`` (basin, lat)
         with CF flag_values/flag_meanings. Latitude bands where a basin's rows are not valid
         are shaded and named by their flag meaning.
@@ -1387,7 +1387,7 @@ def save_standard_figures(data: xr.Dataset, folder, *, width="page", dpi: int = 
         ("wind_stress", ("taux", "tauy"), map_wind_stress),
         ("wind_stress_curl", ("wind_stress_curl",), map_curl),
         ("ekman_pumping", ("ekman_pumping",), map_ekman_pumping),
-        ("streamfunction", ("streamfunction",), map_streamfunction),
+        ("streamfunction", ("sverdrup_streamfunction",), map_streamfunction),
     )
     jobs = [(stem, partial(draw, data, width=width, coastlines=coastlines))
             for stem, needs, draw in maps if all(name in data for name in needs)]

@@ -20,7 +20,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from sverdrup_kit._compiled import curl as _kernels, dispatch, jit as _fast, scan as _scan
+from sverdrup_kit._compiled import curl as _kernels
+from sverdrup_kit._compiled import dispatch
+from sverdrup_kit._compiled import jit as _fast
+from sverdrup_kit._compiled import scan as _scan
 
 ROOT = Path(__file__).resolve().parents[2]
 RADIUS = 6.371e6

@@ -4,17 +4,17 @@ import numpy as np
 import pytest
 import xarray as xr
 
+from sverdrup_kit.constants import EARTH_RADIUS as R
 from sverdrup_kit.geometry.basins import (
     CONTINENT,
     LARGE_ISLAND,
     OCEAN,
     SMALL_ISLAND,
-    basin_mask,
+    basin_ids,
     classify_land,
     label_cells,
     row_groups,
 )
-from sverdrup_kit.constants import EARTH_RADIUS as R
 from sverdrup_kit.geometry.grid import SphericalGrid
 
 
@@ -63,7 +63,7 @@ def test_land_classes_by_area():
     ocean &= ~box(lat, lon, 10, 12, 0, 2)  # one cell at 1N
     ocean &= ~box(lat, lon, 40, 60, 10, 30)  # 10 x 10 cells
     g = SphericalGrid(lat, lon, True)
-    cls, _ = classify_land(ocean, g, island_min_area=1e5, continent_min_area=5e6)
+    cls, _ = classify_land(ocean, g, island_min_area_km2=1e5, continent_min_area_km2=5e6)
     # Derived: a 2 x 2 degree cell at the equator is R^2 dlambda (sin 2 - sin 0) = 4.94e4 km2.
     one = R**2 * np.deg2rad(2) * np.sin(np.deg2rad(2)) / 1e6
     assert one == pytest.approx(4.94e4, rel=1e-3)
@@ -72,7 +72,7 @@ def test_land_classes_by_area():
     assert cls[np.argmin(abs(lat - 21)), np.argmin(abs(lon - 51))] == LARGE_ISLAND
     assert cls[0, 0] == CONTINENT
     assert cls[np.argmin(abs(lat - 21)), np.argmin(abs(lon - 31))] == OCEAN
-    cls2, _ = classify_land(ocean, g, island_min_area=1e5, continent_min_area=4e6)
+    cls2, _ = classify_land(ocean, g, island_min_area_km2=1e5, continent_min_area_km2=4e6)
     assert cls2[np.argmin(abs(lat - 21)), np.argmin(abs(lon - 51))] == CONTINENT
 
 
@@ -82,7 +82,7 @@ def test_land_cut_by_the_edge_of_a_regional_grid_is_a_continent():
     ocean = np.ones((lat.size, lon.size), dtype=bool)
     ocean[:, -1] = False  # one column of land along the eastern edge: tiny, but cut off
     g = SphericalGrid(lat, lon, False)
-    cls, _ = classify_land(ocean, g, island_min_area=1e5, continent_min_area=5e6)
+    cls, _ = classify_land(ocean, g, island_min_area_km2=1e5, continent_min_area_km2=5e6)
     assert np.all(cls[:, -1] == CONTINENT)
 
 
@@ -110,7 +110,7 @@ def test_row_of_water_and_islands_all_round_is_circular():
 def test_basin_mask_names_and_round_trip():
     lat, lon = grid()
     ocean = box(lat, lon, 0, 60, -40, 60) | box(lat, lon, 150, 230, -40, 60)
-    b = basin_mask(mask_da(ocean, lat, lon))
+    b = basin_ids(mask_da(ocean, lat, lon))
     assert b.attrs["flag_meanings"].split() == ["basin_0", "basin_1"]
     # basin_0 is the larger (80 degrees wide against 60).
     assert int(b.sel(lat=1.0, lon=181.0)) == 0
@@ -118,7 +118,7 @@ def test_basin_mask_names_and_round_trip():
     assert int(b.sel(lat=1.0, lon=101.0)) == -1
     # Another convention gives the same labels.
     lon2 = ((lon + 180) % 360) - 180
-    b2 = basin_mask(mask_da(ocean, lat, lon2).sortby("lon"))
+    b2 = basin_ids(mask_da(ocean, lat, lon2).sortby("lon"))
     b2 = b2.assign_coords(lon=b2.lon % 360).sortby("lon")
     np.testing.assert_array_equal(b2.values, b.values)
 
@@ -128,7 +128,7 @@ def test_small_island_joins_the_basin_around_it_in_user_masks():
     ocean = box(lat, lon, 0, 60, 10, 50)
     ocean &= ~box(lat, lon, 30, 32, 30, 32)
     m = mask_da(ocean, lat, lon)
-    b = basin_mask(m, basins={"only": m})
+    b = basin_ids(m, basins={"only": m})
     assert int(b.sel(lat=31.0, lon=31.0)) == 0
 
 
@@ -137,7 +137,7 @@ def test_earth_basins_on_etopo60(etopo60):
     e = xr.open_dataset(etopo60)
     rose = e[list(e.data_vars)[0]]
     ocean = rose < 0
-    b = basin_mask(ocean, basins="earth")
+    b = basin_ids(ocean, basins="earth")
     names = b.attrs["flag_meanings"].split()
     assert names == ["atlantic", "pacific", "indian"]
     lat_name, lon_name = rose.dims
@@ -173,7 +173,7 @@ def test_row_plan_runs_lie_in_one_row_in_ascending_order():
     ocean |= box(lat, lon, -1, 361, -60, -40)
     ocean &= ~box(lat, lon, 180, 190, 10, 30)
     g = SphericalGrid(lat, lon, True)
-    cls, land = classify_land(ocean, g, island_min_area=1e5, continent_min_area=5e6)
+    cls, land = classify_land(ocean, g, island_min_area_km2=1e5, continent_min_area_km2=5e6)
     water = cls <= SMALL_ISLAND
     bid, names, coast = assign_basins(None, water, g, None, None, cls, land, min_area=1e5)
     plan = plan_rows(bid, cls, land, g, n_basins=len(names), equatorial=np.abs(lat) < 3,

@@ -5,8 +5,8 @@ import pytest
 import xarray as xr
 
 from sverdrup_kit import SphericalGrid, beta_parameter, coriolis_parameter
-from sverdrup_kit.geometry.coords import GridError, grid_layout
 from sverdrup_kit.constants import EARTH_RADIUS
+from sverdrup_kit.geometry.coords import GridError, grid_layout
 
 
 def test_coriolis_parameter_matches_gsw():

@@ -12,8 +12,8 @@ import pytest
 import xarray as xr
 
 from sverdrup_kit.geometry.coords import GridError
-from sverdrup_kit.io.units import UnitsError
 from sverdrup_kit.io.readers import TimeDecodingWarning, open_stress, open_winds
+from sverdrup_kit.io.units import UnitsError
 
 from .._dask_guard import CountingScheduler
 

@@ -9,9 +9,9 @@ import pytest
 import xarray as xr
 
 from sverdrup_kit import wind_stress_curl
+from sverdrup_kit.geometry.grid import beta_parameter
 from sverdrup_kit.physics.barotropic import boundary_current, solve_barotropic, solve_basin
 from sverdrup_kit.physics.boundary_layers import munk_width, stommel_basin
-from sverdrup_kit.geometry.grid import beta_parameter
 
 from .._dask_guard import CountingScheduler
 
@@ -29,8 +29,8 @@ def stommel_case(nx, ny, *, L=2e6, b=2e6, r=1e-6, beta=2e-11):
 
 def errors(num, exact, delta):
     """Max error of psi in the boundary layer (x < 4 delta) and the interior, relative to max."""
-    err = np.abs(num.streamfunction.values - exact.streamfunction.values)
-    scale = exact.streamfunction.values.max()
+    err = np.abs(num.barotropic_streamfunction.values - exact.barotropic_streamfunction.values)
+    scale = exact.barotropic_streamfunction.values.max()
     layer = exact.x.values < 4 * delta
     return err[:, layer].max() / scale, err[:, ~layer].max() / scale
 
@@ -53,8 +53,8 @@ def test_stommel_boundary_current_velocity_matches_closed_form():
     # Stommel (1948): northward transport in the western layer, from psi_x of the exact form.
     x, y, curl, exact = stommel_case(401, 81)
     num = solve_basin(x, y, curl, r=1e-6, beta=2e-11)
-    v_num = num.northward_transport.values[1:-1, 1:-1]
-    v_ex = exact.northward_transport.values[1:-1, 1:-1]
+    v_num = num.barotropic_northward_transport.values[1:-1, 1:-1]
+    v_ex = exact.barotropic_northward_transport.values[1:-1, 1:-1]
     assert np.max(np.abs(v_num - v_ex)) < 0.01 * np.max(np.abs(v_ex))
 
 
@@ -84,7 +84,7 @@ def test_munk_no_slip_peak_and_reversal_within_a_grid_cell(nx):
     # current carries 1 + exp(-pi/sqrt 3) = 1.163 times the net return of the whole layer. 3%:
     # the interior value is itself uncertain by about 2% (the jump of the forcing at 0.4 L has
     # a viscous layer of its own).
-    assert float(bc.peak_transport / bc.boundary_transport) == pytest.approx(1.163, rel=0.03)
+    assert float(bc.peak_transport / bc.boundary_layer_transport) == pytest.approx(1.163, rel=0.03)
 
 
 def test_munk_free_slip_peaks_at_the_wall_and_reverses_at_2_418():
@@ -135,10 +135,10 @@ def test_sphere_munk_interior_is_sverdrup_and_boundary_returns_it(A_H):
     out = solve_barotropic(sector(), A_H=A_H)
     bc = boundary_current(out).sel(lat=slice(25, 35))
     np.testing.assert_allclose(bc.interior_ratio, 1.0, atol=0.02)
-    np.testing.assert_allclose(bc.boundary_transport, -bc.sverdrup_interior_transport,
+    np.testing.assert_allclose(bc.boundary_layer_transport, -bc.sverdrup_transport_east_of_layer,
                                rtol=0.02)
     # Net transport across each row is zero: both coasts are the main coast (psi = 0).
-    np.testing.assert_allclose(bc.boundary_transport + bc.interior_transport, 0, atol=1e-9)
+    np.testing.assert_allclose(bc.boundary_layer_transport + bc.solved_interior_transport, 0, atol=1e-9)
     # The Sverdrup residual is small well inside the basin (interior friction A_H lap^2 psi is
     # about A_H (L - x) / (beta l^4) ~ 1e-3 of beta V here, l = 30 deg / pi: derived), large in
     # the boundary current.
@@ -148,12 +148,12 @@ def test_sphere_munk_interior_is_sverdrup_and_boundary_returns_it(A_H):
 
 
 def test_interior_matches_the_toolkits_sverdrup_integral():
-    # Cross-check with sverdrup_kit.physics.sverdrup.sverdrup (an independent westward integral from the
+    # Cross-check with sverdrup_kit.physics.sverdrup.sverdrup_transport (an independent westward integral from the
     # eastern coast): beyond the boundary layer the solved streamfunction matches its
     # streamfunction to 1% of the gyre's maximum (Munk friction, nearly inviscid interior), and
     # the coast-to-coast Sverdrup transports agree to 2% (its coast lies on the ocean cell's
     # face, ours on the first land point: one cell of 100 apart).
-    from sverdrup_kit.physics.sverdrup import sverdrup
+    from sverdrup_kit.physics.sverdrup import sverdrup_transport
 
     da = sector()
     ocean = np.isfinite(da)
@@ -161,18 +161,18 @@ def test_interior_matches_the_toolkits_sverdrup_integral():
     taux = taux.assign_attrs(units="Pa")
     tauy = xr.zeros_like(taux).where(ocean).assign_attrs(units="Pa")
     sol = solve_barotropic(wind_stress_curl(taux, tauy), A_H=4e3)
-    sv = sverdrup(taux, tauy)
+    sv = sverdrup_transport(taux, tauy)
     bc = boundary_current(sol)
     for lat in (25.25, 30.25, 35.25):
         row = bc.sel(lat=lat)
         dist = np.deg2rad(sol.lon - row.western_coast) * 6.371e6 * np.cos(np.deg2rad(lat))
-        mine = sol.streamfunction.sel(lat=lat)
-        theirs = sv.streamfunction.sel(lat=lat)
+        mine = sol.barotropic_streamfunction.sel(lat=lat)
+        theirs = sv.sverdrup_streamfunction.sel(lat=lat)
         inside = (dist > row.interior_start) & np.isfinite(theirs)
         err = float(np.abs(mine - theirs).where(inside).max() / np.abs(theirs).max())
         assert err < 0.01, (lat, err)
         t = float(sv.interior_transport.isel(basin=0).sel(lat=lat))
-        assert float(row.sverdrup_transport) == pytest.approx(t, rel=0.02)
+        assert float(row.sverdrup_transport_coast_to_coast) == pytest.approx(t, rel=0.02)
 
 
 def test_southern_hemisphere_gyre_closes_too():
@@ -183,7 +183,7 @@ def test_southern_hemisphere_gyre_closes_too():
     bc = boundary_current(solve_barotropic(sh, A_H=8e3)).sel(lat=slice(-35, -25))
     assert np.all(bc.peak_northward_velocity < 0)
     np.testing.assert_allclose(bc.interior_ratio, 1.0, atol=0.02)
-    np.testing.assert_allclose(bc.boundary_transport, -bc.sverdrup_interior_transport,
+    np.testing.assert_allclose(bc.boundary_layer_transport, -bc.sverdrup_transport_east_of_layer,
                                rtol=0.02)
 
 
@@ -197,11 +197,11 @@ def test_three_classic_cases_symmetry_and_western_intensification():
     none = solve_basin(x, y, curl, r=1e-6)
     fplane = solve_basin(x, y, curl, r=1e-6, f0=7.29e-5)
     beta = solve_basin(x, y, curl, r=1e-6, beta=2e-11)
-    p = none.streamfunction.values
+    p = none.barotropic_streamfunction.values
     np.testing.assert_allclose(p, p[:, ::-1], atol=1e-9 * p.max())
-    np.testing.assert_allclose(fplane.streamfunction, none.streamfunction, atol=1e-12)
+    np.testing.assert_allclose(fplane.barotropic_streamfunction, none.barotropic_streamfunction, atol=1e-12)
     assert none.attrs["rotation"] == "none" and fplane.attrs["rotation"] == "f-plane"
-    pb = beta.streamfunction.values[20]
+    pb = beta.barotropic_streamfunction.values[20]
     assert x[np.argmax(pb)] < 0.15 * x[-1]
     w = float(boundary_current(beta).efolding_width.isel(y=20))
     assert w == pytest.approx(5e4, rel=0.1)
@@ -236,8 +236,8 @@ def test_island_constant_and_kelvin_circulation(beta, r, tol):
     res = {}
     for islands in ("circulation", "coast"):
         out = solve_basin(x, y, np.where(island, np.nan, curl), r=r, beta=beta, islands=islands)
-        U, V = out.eastward_transport.values, out.northward_transport.values
-        psi = out.streamfunction.values * 1e6
+        U, V = out.barotropic_eastward_transport.values, out.barotropic_northward_transport.values
+        psi = out.barotropic_streamfunction.values * 1e6
         i0, i1, j0, j1 = 51, 74, 26, 44
         xs, ys = x[j0 : j1 + 1], y[i0 : i1 + 1]
         circ = (trap(U[i0, j0 : j1 + 1], xs) + trap(V[i0 : i1 + 1, j1], ys)
@@ -246,7 +246,7 @@ def test_island_constant_and_kelvin_circulation(beta, r, tol):
         wind = (xs[-1] - xs[0]) * (tau_x(ys[0]) - tau_x(ys[-1])) / RHO0
         res[islands] = (r * circ + coriolis) / wind - 1
         if islands == "circulation":
-            on = out.streamfunction.values[island]
+            on = out.barotropic_streamfunction.values[island]
             assert out.attrs["n_islands"] == 1
             assert np.ptp(on) == 0 and on[0] == out.attrs["island_streamfunction"][0] != 0
             assert np.all(out.land_mass.values[island] == 1)
@@ -289,10 +289,10 @@ def test_longitude_convention_and_latitude_order_do_not_matter():
     alt = solve_barotropic(wrapped, r=4e-6, A_H=2e4)
     np.testing.assert_array_equal(alt.lon, wrapped.lon)
     alt = alt.assign_coords(lon=((alt.lon + 180) % 360) - 180)
-    np.testing.assert_allclose(alt.streamfunction, ref.streamfunction, atol=1e-9)
+    np.testing.assert_allclose(alt.barotropic_streamfunction, ref.barotropic_streamfunction, atol=1e-9)
     flipped = solve_barotropic(da.isel(lat=slice(None, None, -1)), r=4e-6, A_H=2e4)
     assert flipped.lat.values[0] > flipped.lat.values[-1]
-    np.testing.assert_allclose(flipped.sortby("lat").streamfunction, ref.streamfunction,
+    np.testing.assert_allclose(flipped.sortby("lat").barotropic_streamfunction, ref.barotropic_streamfunction,
                                atol=1e-9)
 
 
@@ -320,11 +320,11 @@ def test_global_one_degree_grid_islands_and_seam():
     assert out.attrs["n_islands"] == 2
     lid = out.land_mass.values
     for k in (1, 2):
-        assert np.ptp(out.streamfunction.values[lid == k]) == 0
-    assert np.all(out.streamfunction.values[lid == 0] == 0)
+        assert np.ptp(out.barotropic_streamfunction.values[lid == k]) == 0
+    assert np.all(out.barotropic_streamfunction.values[lid == 0] == 0)
     assert set(out.lat.values[(lid == 1).any(axis=1)]) == set(out.lat.values[out.lat < -70])
     # the seam at 0/360 is interior ocean: psi is continuous across it
-    p = out.streamfunction.sel(lat=slice(-20, 20)).values
+    p = out.barotropic_streamfunction.sel(lat=slice(-20, 20)).values
     jump = np.nanmax(np.abs(p[:, 0] - p[:, -1]))
     typical = np.nanmax(np.abs(np.diff(p, axis=1)))
     assert jump <= typical
@@ -362,7 +362,7 @@ def test_rotation_options():
     assert np.allclose(bp.beta, 1.9825e-11, rtol=1e-4)
     fp = solve_barotropic(da, r=4e-6, rotation="f-plane", reference_latitude=30.0)
     no = solve_barotropic(da, r=4e-6, rotation="none")
-    np.testing.assert_allclose(fp.streamfunction, no.streamfunction, atol=1e-12)
+    np.testing.assert_allclose(fp.barotropic_streamfunction, no.barotropic_streamfunction, atol=1e-12)
     assert np.allclose(fp.coriolis_parameter, 7.2921e-5, rtol=1e-4)
     sph = solve_barotropic(da, r=4e-6)
     np.testing.assert_allclose(sph.beta, beta_parameter(sph.lat.values))
@@ -374,8 +374,8 @@ def test_leading_dimension_solved_field_by_field():
     both = xr.concat([da, 2 * da], dim="time").assign_coords(time=[0, 1])
     out = solve_barotropic(both, r=4e-6)
     one = solve_barotropic(da, r=4e-6)
-    np.testing.assert_allclose(out.streamfunction.sel(time=0), one.streamfunction, atol=1e-12)
-    np.testing.assert_allclose(out.streamfunction.sel(time=1), 2 * one.streamfunction,
+    np.testing.assert_allclose(out.barotropic_streamfunction.sel(time=0), one.barotropic_streamfunction, atol=1e-12)
+    np.testing.assert_allclose(out.barotropic_streamfunction.sel(time=1), 2 * one.barotropic_streamfunction,
                                atol=1e-9)
 
 
@@ -424,7 +424,7 @@ def test_real_one_degree_earth_mask_with_dozens_of_islands(etopo60):
     assert out.attrs["n_islands"] > 10
     lid = out.land_mass.values
     for k in range(1, out.attrs["n_islands"] + 1):
-        assert np.ptp(out.streamfunction.values[lid == k]) == 0
+        assert np.ptp(out.barotropic_streamfunction.values[lid == k]) == 0
     # Antarctica is ringed by the circumpolar channel, so it is an island with its own value
     k = int(out.land_mass.sel(lat=-80, lon=100, method="nearest"))
     assert k > 0 and out.attrs["island_streamfunction"][k - 1] != 0
@@ -441,10 +441,10 @@ def test_dask_input_stays_lazy_and_matches_numpy():
         lazy = solve_barotropic(stack.chunk(time=1), r=4e-6, A_H=2e4,
                                 ocean_mask=np.isfinite(da))
         assert counter.calls == 0
-        assert isinstance(lazy.streamfunction.data, dsa.Array)
+        assert isinstance(lazy.barotropic_streamfunction.data, dsa.Array)
         out = lazy.compute()
-    np.testing.assert_allclose(out.streamfunction, ref.streamfunction, atol=1e-12)
-    np.testing.assert_allclose(out.northward_transport, ref.northward_transport, atol=1e-12)
+    np.testing.assert_allclose(out.barotropic_streamfunction, ref.barotropic_streamfunction, atol=1e-12)
+    np.testing.assert_allclose(out.barotropic_northward_transport, ref.barotropic_northward_transport, atol=1e-12)
 
 
 def test_operator_survives_pickling_for_other_processes():

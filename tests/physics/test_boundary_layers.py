@@ -44,18 +44,18 @@ def test_munk_layer_solves_its_equation(boundary):
     h = d / 400
     x = np.arange(0, 12 * d, h)
     ds = munk_boundary_layer(x, 10.0, A_H=A_H, beta=beta, boundary=boundary)
-    psi = ds.streamfunction.values
+    psi = ds.barotropic_streamfunction.values
     assert psi[0] == pytest.approx(0.0, abs=1e-12)
     assert psi[-1] == pytest.approx(10.0, rel=2e-2)
     d1 = np.gradient(psi, h)
     # the returned transport is the exact derivative: compare with a numerical one
-    np.testing.assert_allclose(ds.northward_transport.values[5:-5] / 1e6, d1[5:-5],
+    np.testing.assert_allclose(ds.barotropic_northward_transport.values[5:-5] / 1e6, d1[5:-5],
                                atol=2e-4 * np.abs(d1).max())
     d4 = (psi[4:] - 4 * psi[3:-1] + 6 * psi[2:-2] - 4 * psi[1:-3] + psi[:-4]) / h**4
     lhs, rhs = beta * d1[2:-2], A_H * d4
     assert np.max(np.abs(lhs - rhs)[10:-10]) < 1e-3 * np.max(np.abs(lhs))
     if boundary == "no-slip":
-        assert ds.northward_transport.values[0] == pytest.approx(0.0, abs=1e-9)
+        assert ds.barotropic_northward_transport.values[0] == pytest.approx(0.0, abs=1e-9)
     else:
         assert (psi[2] - 2 * psi[1] + psi[0]) / h**2 == pytest.approx(
             0.0, abs=1e-2 * np.abs(d1).max() / d)
@@ -65,7 +65,7 @@ def test_munk_layer_peak_and_reversal_on_the_profile():
     # REFERENCES.md (derived): 1.209 and 3.628 delta_M, found on a fine profile.
     ds = munk_boundary_layer(np.linspace(0, 5e5, 50001), A_H=1e3, beta=BETA_30N)
     d = ds.attrs["delta_M"]
-    v = ds.northward_velocity.values
+    v = ds.barotropic_northward_velocity.values
     x = ds.x.values
     assert x[np.argmax(v)] / d == pytest.approx(1.209, abs=2e-3)
     assert x[np.flatnonzero(v[1:] < 0)[0] + 1] / d == pytest.approx(3.628, abs=2e-3)
@@ -74,7 +74,7 @@ def test_munk_layer_peak_and_reversal_on_the_profile():
 def stommel_residual(ds):
     """r lap(psi) + beta psi_x - curl/rho0 by centred differences on the closed form."""
     a = ds.attrs
-    psi = ds.streamfunction.values * 1e6
+    psi = ds.barotropic_streamfunction.values * 1e6
     x, y = ds.x.values, ds.y.values
     hx, hy = x[1] - x[0], y[1] - y[0]
     lap = ((psi[1:-1, 2:] - 2 * psi[1:-1, 1:-1] + psi[1:-1, :-2]) / hx**2
@@ -92,7 +92,7 @@ def test_stommel_closed_form_solves_the_stommel_equation():
     ds = stommel_basin(x, y, r=1e-6, beta=2e-11)
     res, forcing = stommel_residual(ds)
     assert np.max(np.abs(res)) < 5e-3 * np.max(np.abs(forcing))
-    psi = ds.streamfunction.values
+    psi = ds.barotropic_streamfunction.values
     for edge in (psi[0], psi[-1], psi[:, 0], psi[:, -1]):
         assert np.max(np.abs(edge)) < 1e-9 * np.max(psi)
 
@@ -104,16 +104,16 @@ def test_stommel_gyre_is_anticyclonic_and_western_intensified():
     y = np.linspace(0, 3e6, 61)
     ds = stommel_basin(x, y, r=1e-6, beta=2e-11)
     mid = ds.isel(y=30)
-    assert float(ds.streamfunction.min()) >= -1e-12
-    assert x[np.argmax(mid.streamfunction.values)] < 0.1 * 5e6
-    assert float(mid.northward_velocity.isel(x=1)) > 0 > float(mid.northward_velocity.isel(x=250))
+    assert float(ds.barotropic_streamfunction.min()) >= -1e-12
+    assert x[np.argmax(mid.barotropic_streamfunction.values)] < 0.1 * 5e6
+    assert float(mid.barotropic_northward_velocity.isel(x=1)) > 0 > float(mid.barotropic_northward_velocity.isel(x=250))
 
 
 def test_stommel_symmetric_without_beta():
     # Stommel (1948) cases 1 and 2: without beta the gyre is symmetric east-west.
     x = np.linspace(0, 2e6, 201)
     y = np.linspace(0, 1e6, 51)
-    psi = stommel_basin(x, y, r=1e-6, beta=0.0).streamfunction.values
+    psi = stommel_basin(x, y, r=1e-6, beta=0.0).barotropic_streamfunction.values
     np.testing.assert_allclose(psi, psi[:, ::-1], atol=1e-12 * psi.max())
 
 
@@ -124,9 +124,9 @@ def test_stommel_weak_friction_tends_to_sverdrup_interior():
     y = np.linspace(0, 3e6, 61)
     F, beta, rho0 = 0.1, 2e-11, 1025.0
     ds = stommel_basin(x, y, r=1e-9, beta=beta, stress_amplitude=F)
-    assert np.all(np.isfinite(ds.streamfunction.values))
+    assert np.all(np.isfinite(ds.barotropic_streamfunction.values))
     sv = (5e6 - x) * F * np.pi / (3e6 * rho0 * beta) * np.sin(np.pi * y / 3e6)[:, None] / 1e6
-    np.testing.assert_allclose(ds.streamfunction.values[:, 5:], sv[:, 5:], atol=0.01 * sv.max())
+    np.testing.assert_allclose(ds.barotropic_streamfunction.values[:, 5:], sv[:, 5:], atol=0.01 * sv.max())
 
 
 def test_bad_input_names_the_argument():

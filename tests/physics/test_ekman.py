@@ -60,15 +60,15 @@ def test_equatorial_band_is_masked_and_recorded():
     lat = np.arange(-10.0, 10.1, 1.0)
     lon = np.arange(0, 360, 10.0)
     tx = field(np.full((lat.size, lon.size), 0.05), lat, lon)
-    e = ekman(tx, 0 * tx, equatorial_band=4.0)
+    e = ekman(tx, 0 * tx, equatorial_half_width=4.0)
     inside = np.abs(lat) < 4.0
     for name in e.data_vars:
         assert np.all(np.isnan(e[name].values[inside])), name
-        assert e[name].attrs["equatorial_band"] == 4.0
+        assert e[name].attrs["equatorial_half_width"] == 4.0
         assert "equator" in e[name].attrs["comment"]
     assert np.all(np.isfinite(e.ekman_northward_transport.values[~inside]))
-    with pytest.raises(ValueError, match="equatorial_band"):
-        ekman(tx, 0 * tx, equatorial_band=0)
+    with pytest.raises(ValueError, match="equatorial_half_width"):
+        ekman(tx, 0 * tx, equatorial_half_width=0)
 
 
 def test_descending_latitude_and_dask_give_the_same_answer():

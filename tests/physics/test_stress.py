@@ -45,7 +45,7 @@ def field(values, *, units="m s-1", time=None, **attrs):
 
 
 def cd(speed, drag):
-    return drag_coefficient(np.asarray(speed, dtype=np.float64), drag=drag)
+    return drag_coefficient(np.asarray(speed, dtype=np.float64), drag_law=drag)
 
 
 # ---------------------------------------------------------------- drag laws vs publications
@@ -164,7 +164,7 @@ def test_custom_drag_law():
     # a user's own law goes through the same path; a linear law checked by hand (derived)
     law = DragLaw("linear", lambda U: (0.5 + 0.07 * U) * 1e-3, "0.5 + 0.07 U", "own", (0, 30))
     np.testing.assert_allclose(cd([10.0, np.nan], law), [1.2e-3, np.nan])
-    ds = wind_stress(field(10.0), field(0.0), drag=law)
+    ds = wind_stress(field(10.0), field(0.0), drag_law=law)
     assert ds.attrs["drag_law"] == "linear"
     np.testing.assert_allclose(ds.taux, 1.22 * 1.2e-3 * 100.0)
 
@@ -219,14 +219,14 @@ def test_drag_laws_against_coare35(drag):
     # bulk drag laws (common practice). Measured here: ratios 0.76-1.30.
     u = np.arange(5.0, 20.01, 0.5)
     _, u10n, cdn = _coare35_neutral(u)
-    ratio = drag_coefficient(u10n, drag=drag) / cdn
+    ratio = drag_coefficient(u10n, drag_law=drag) / cdn
     assert np.all((ratio > 0.70) & (ratio < 1.35)), ratio
     mid = (u10n >= 8.0) & (u10n <= 11.0)
     assert np.all(np.abs(ratio[mid] - 1.0) < 0.15), ratio[mid]
     # both sides agree that drag rises with wind between 10 and 20 m/s (common practice)
     hi = u10n >= 10.0
     assert np.all(np.diff(cdn[hi]) > 0)
-    assert np.all(np.diff(drag_coefficient(u10n[hi], drag=drag)) >= 0)
+    assert np.all(np.diff(drag_coefficient(u10n[hi], drag_law=drag)) >= 0)
 
 
 def test_bulk_formula_reproduces_coare35_stress():
@@ -239,7 +239,7 @@ def test_bulk_formula_reproduces_coare35_stress():
     gust = run.velocities.du / run.velocities.ut
     for i in range(u.size):
         uu = xr.DataArray([u10n[i]], dims="x", attrs={"units": "m s-1"})
-        tau = wind_stress(uu, 0.0 * uu, drag=float(cdn[i]), air_density=float(rhoa[i]))
+        tau = wind_stress(uu, 0.0 * uu, drag_law=float(cdn[i]), air_density=float(rhoa[i]))
         assert float(tau.taux[0]) == pytest.approx(run.fluxes.tau[i] / gust[i], rel=1e-9)
         assert float(tau.tauy[0]) == 0.0
 
@@ -255,14 +255,14 @@ def test_bulk_formula_hand_computed():
     np.testing.assert_allclose(ds.taux, 1.22 * 1.2e-3 * 10.0 * -6.0, rtol=1e-14)
     np.testing.assert_allclose(ds.tauy, 1.22 * 1.2e-3 * 10.0 * 8.0, rtol=1e-14)
     # zonal 10 m/s under LY04 and air density 1.225: 1.225 * 1.17594e-3 * 100 (derived)
-    ds = wind_stress(field(10.0), field(0.0), drag="large-yeager-2004", air_density=1.225)
+    ds = wind_stress(field(10.0), field(0.0), drag_law="large-yeager-2004", air_density=1.225)
     np.testing.assert_allclose(ds.taux, 1.225 * 1.1759419e-3 * 100.0, rtol=1e-7)
     np.testing.assert_array_equal(ds.tauy, 0.0)
 
 
 def test_metadata_and_land():
     u = field(np.where(np.arange(4) == 2, np.nan, 7.0))
-    ds = wind_stress(u, field(1.0), drag="trenberth-1990", air_density=1.225)
+    ds = wind_stress(u, field(1.0), drag_law="trenberth-1990", air_density=1.225)
     assert set(ds.data_vars) == {"taux", "tauy"}
     assert ds.taux.attrs["units"] == "Pa" and ds.tauy.attrs["units"] == "Pa"
     assert ds.taux.attrs["standard_name"] == "surface_downward_eastward_stress"
@@ -279,7 +279,7 @@ def test_metadata_and_land():
 
 
 def test_constant_drag_attrs():
-    ds = wind_stress(field(10.0), field(0.0), drag=1.5e-3)
+    ds = wind_stress(field(10.0), field(0.0), drag_law=1.5e-3)
     np.testing.assert_allclose(ds.taux, 1.22 * 1.5e-3 * 100.0)  # derived
     assert "1.5e-03" in ds.attrs["drag_law"] or "0.0015" in ds.attrs["drag_law"]
 
@@ -287,7 +287,7 @@ def test_constant_drag_attrs():
 def test_speed_argument_replaces_vector_magnitude():
     # derived: tau = rho_a Cd(S) S (u, v) with LP81 Cd(15) = 1.465e-3
     u, v, s = field(3.0), field(4.0), field(15.0)
-    ds = wind_stress(u, v, speed=s)
+    ds = wind_stress(u, v, wind_speed=s)
     np.testing.assert_allclose(ds.taux, 1.22 * 1.465e-3 * 15.0 * 3.0, rtol=1e-12)
     np.testing.assert_allclose(ds.tauy, 1.22 * 1.465e-3 * 15.0 * 4.0, rtol=1e-12)
     assert "scalar-mean" in ds.attrs["wind_speed_used"]
@@ -299,7 +299,7 @@ def test_inputs_not_modified():
     v = field(2.0, units="M/S", time=time)
     s = field(12.0, units="knots", time=time)
     before = [a.copy(deep=True) for a in (u, v, s)]
-    wind_stress(u, v, speed=s, drag="large-yeager-2009")
+    wind_stress(u, v, wind_speed=s, drag_law="large-yeager-2009")
     drag_coefficient(s)
     for a, b in zip((u, v, s), before):
         xr.testing.assert_identical(a, b)
@@ -321,15 +321,15 @@ def test_inputs_not_modified():
 )
 def test_units_are_converted(units, factor):
     raw = np.array([[3.0, -12.0, 20.0, 0.5]] * 4)
-    ref = wind_stress(field(raw * factor), field(raw.T * factor), drag="large-yeager-2004")
-    got = wind_stress(field(raw, units=units), field(raw.T, units=units), drag="large-yeager-2004")
+    ref = wind_stress(field(raw * factor), field(raw.T * factor), drag_law="large-yeager-2004")
+    got = wind_stress(field(raw, units=units), field(raw.T, units=units), drag_law="large-yeager-2004")
     xr.testing.assert_allclose(got, ref, rtol=1e-12)
 
 
 def test_mixed_units_between_components():
     u = field(10.0 / KNOT, units="knots")
     v = field(0.0, units="M/S")
-    ds = wind_stress(u, v, speed=field(1000.0, units="cm/s"))
+    ds = wind_stress(u, v, wind_speed=field(1000.0, units="cm/s"))
     np.testing.assert_allclose(ds.taux, 1.22 * 1.2e-3 * 10.0 * 10.0, rtol=1e-9)  # derived
 
 
@@ -338,14 +338,14 @@ def test_mixed_units_between_components():
 
 def test_unknown_drag_name_lists_valid_names():
     with pytest.raises(ValueError) as err:
-        wind_stress(field(5.0), field(5.0), drag="large-pond-1982")
+        wind_stress(field(5.0), field(5.0), drag_law="large-pond-1982")
     msg = str(err.value)
-    assert msg.startswith("drag:")
+    assert msg.startswith("drag_law:")
     for name in DRAG_LAWS:
         assert name in msg
     assert "large-pond-1982" in msg and "Fix" in msg
     with pytest.raises(ValueError, match="large-yeager-2009"):
-        drag_coefficient(5.0, drag="LY09")
+        drag_coefficient(5.0, drag_law="LY09")
 
 
 def test_drag_name_spelling_is_forgiving():
@@ -354,15 +354,15 @@ def test_drag_name_spelling_is_forgiving():
 
 @pytest.mark.parametrize("bad", [1.3, 0.0, -1e-3, np.nan])
 def test_implausible_constant_drag(bad):
-    with pytest.raises(ValueError, match=r"drag: expected a constant drag coefficient"):
-        drag_coefficient(5.0, drag=bad)
+    with pytest.raises(ValueError, match=r"drag_law: expected a constant drag coefficient"):
+        drag_coefficient(5.0, drag_law=bad)
 
 
 def test_bad_drag_type():
-    with pytest.raises(TypeError, match="drag:"):
-        drag_coefficient(5.0, drag=None)
-    with pytest.raises(TypeError, match="drag:"):
-        drag_coefficient(5.0, drag=True)
+    with pytest.raises(TypeError, match="drag_law:"):
+        drag_coefficient(5.0, drag_law=None)
+    with pytest.raises(TypeError, match="drag_law:"):
+        drag_coefficient(5.0, drag_law=True)
 
 
 def test_mismatched_grids():
@@ -370,15 +370,15 @@ def test_mismatched_grids():
     with pytest.raises(GridError, match=r"u and v: expected the same grid"):
         wind_stress(field(1.0), v)
     s = field(1.0).isel(lon=slice(0, 3))
-    with pytest.raises(GridError, match=r"u and speed"):
-        wind_stress(field(1.0), field(1.0), speed=s)
+    with pytest.raises(GridError, match=r"u and wind_speed"):
+        wind_stress(field(1.0), field(1.0), wind_speed=s)
 
 
 def test_unknown_units():
     with pytest.raises(UnitsError, match=r"^v: .*furlong"):
         wind_stress(field(1.0), field(1.0, units="furlong/fortnight"))
-    with pytest.raises(UnitsError, match=r"^speed: .*Pa"):
-        wind_stress(field(1.0), field(1.0), speed=field(1.0, units="Pa"))
+    with pytest.raises(UnitsError, match=r"^wind_speed: .*Pa"):
+        wind_stress(field(1.0), field(1.0), wind_speed=field(1.0, units="Pa"))
 
 
 def test_not_dataarrays():
@@ -418,8 +418,8 @@ def test_monthly_mean_bias_monte_carlo():
     a, b = rng.normal(0.0, s, n), rng.normal(0.0, s, n)
     u = xr.DataArray(big_u + a, dims="sample", attrs={"units": "m s-1"})
     v = xr.DataArray(b, dims="sample", attrs={"units": "m s-1"})
-    true_mean = wind_stress(u, v, drag=1.3e-3).mean("sample")
-    of_mean = wind_stress(u.mean(), v.mean(), drag=1.3e-3)
+    true_mean = wind_stress(u, v, drag_law=1.3e-3).mean("sample")
+    of_mean = wind_stress(u.mean(), v.mean(), drag_law=1.3e-3)
     ratio = float(true_mean.taux / of_mean.taux)
     assert ratio == pytest.approx(exact / big_u**2, abs=0.005)
     assert ratio == pytest.approx(1.132, abs=0.005)
@@ -429,7 +429,7 @@ def test_monthly_mean_bias_monte_carlo():
     # Passing the scalar-mean speed closes about a third of the gap (derived from the
     # quadrature above: S U / U^2 = 1.046, leaving 1.132 / 1.046 = 1.082).
     s_mean = np.hypot(u, v).mean()
-    with_speed = wind_stress(u.mean(), v.mean(), drag=1.3e-3, speed=s_mean)
+    with_speed = wind_stress(u.mean(), v.mean(), drag_law=1.3e-3, wind_speed=s_mean)
     ratio_s = float(true_mean.taux / with_speed.taux)
     assert ratio_s == pytest.approx(exact / (mean_speed * big_u), abs=0.005)
     assert 1.0 < ratio_s < ratio
@@ -448,7 +448,7 @@ def test_warning_once_for_twelve_months():
     got = _record(wind_stress, u, v)
     assert len(got) == 1
     msg = str(got[0].message)
-    assert "monthly" in msg and "20%" in msg and "speed=" in msg
+    assert "monthly" in msg and "20%" in msg and "wind_speed=" in msg
     assert got[0].filename == __file__  # points at the caller
     assert issubclass(MonthlyMeanWindWarning, UserWarning)
 
@@ -494,7 +494,7 @@ def test_no_warning_for_single_field_daily_data_or_given_speed():
     assert _record(wind_stress, one, one) == []
     monthly = pd.date_range("2000-01-01", periods=12, freq="MS")
     u = field(8.0, time=monthly)
-    assert _record(wind_stress, u, u, speed=field(9.0, time=monthly)) == []
+    assert _record(wind_stress, u, u, wind_speed=field(9.0, time=monthly)) == []
 
 
 # ---------------------------------------------------------------- dask
@@ -515,28 +515,28 @@ def _monthly_winds():
 @pytest.mark.parametrize("with_speed", [False, True])
 def test_dask_stays_lazy_and_matches_numpy(drag, with_speed):
     u, v, s = _monthly_winds()
-    ref = wind_stress(u, v, drag=drag, speed=s if with_speed else None)
+    ref = wind_stress(u, v, drag_law=drag, wind_speed=s if with_speed else None)
     lu, lv, ls = u.chunk({"time": 2, "lat": 2}), v.chunk({"time": 3}), s.chunk({"lon": 2})
     counter = CountingScheduler()
     with dask.config.set(scheduler=counter):
-        lazy = wind_stress(lu, lv, drag=drag, speed=ls if with_speed else None)
-        cdl = drag_coefficient(ls, drag=drag)
+        lazy = wind_stress(lu, lv, drag_law=drag, wind_speed=ls if with_speed else None)
+        cdl = drag_coefficient(ls, drag_law=drag)
         assert counter.calls == 0
         assert isinstance(lazy.taux.data, dsa.Array) and isinstance(cdl.data, dsa.Array)
         got = lazy.compute()
         assert counter.calls > 0
     xr.testing.assert_allclose(got, ref, rtol=1e-14, atol=0)
     assert got.attrs == ref.attrs
-    np.testing.assert_array_equal(cdl.values, drag_coefficient(s, drag=drag).values)
+    np.testing.assert_array_equal(cdl.values, drag_coefficient(s, drag_law=drag).values)
 
 
 def test_distributed_matches_numpy():
     distributed = pytest.importorskip("distributed")
     u, v, s = _monthly_winds()
-    ref = wind_stress(u, v, drag="large-yeager-2009")
+    ref = wind_stress(u, v, drag_law="large-yeager-2009")
     with distributed.Client(
         n_workers=1, threads_per_worker=2, processes=False, dashboard_address=None
     ):
-        got = wind_stress(u.chunk({"time": 2}), v.chunk({"time": 2}), drag="large-yeager-2009")
+        got = wind_stress(u.chunk({"time": 2}), v.chunk({"time": 2}), drag_law="large-yeager-2009")
         got = got.compute()
     xr.testing.assert_allclose(got, ref, rtol=1e-14, atol=0)

@@ -10,8 +10,8 @@ import xarray as xr
 
 from sverdrup_kit.constants import EARTH_RADIUS as R
 from sverdrup_kit.constants import OMEGA, RHO0
-from sverdrup_kit.physics.ekman import DEFAULT_EQUATORIAL_BAND
-from sverdrup_kit.physics.sverdrup import sverdrup
+from sverdrup_kit.physics.ekman import DEFAULT_EQUATORIAL_HALF_WIDTH
+from sverdrup_kit.physics.sverdrup import sverdrup_transport
 
 from .._dask_guard import CountingScheduler
 
@@ -80,7 +80,7 @@ def test_closed_basin_matches_the_sverdrup_relation_within_one_percent():
     k = np.pi / (pn - ps)
     phi = np.deg2rad(lat)
     tx = np.where(ocean, -tau0 * np.cos(k * (phi - ps))[:, None] + 0 * lon, np.nan)
-    ds = sverdrup(field(tx, lat, lon), field(np.where(ocean, 0.0, np.nan), lat, lon))
+    ds = sverdrup_transport(field(tx, lat, lon), field(np.where(ocean, 0.0, np.nan), lat, lon))
     curl = -(tau0 / (R * np.cos(phi))) * (
         k * np.sin(k * (phi - ps)) * np.cos(phi) + np.cos(k * (phi - ps)) * np.sin(phi)
     )
@@ -91,8 +91,8 @@ def test_closed_basin_matches_the_sverdrup_relation_within_one_percent():
     assert np.all(np.isfinite(got))
     np.testing.assert_allclose(got, exact[inside], atol=0.01 * scale)
     # The eastern coast is the meridian 60E, the western boundary 0E.
-    assert np.allclose(ds.eastern_boundary_lon.isel(basin=0).values[inside], 60.0)
-    assert np.allclose(ds.western_boundary_lon.isel(basin=0).values[inside] % 360, 0.0)
+    assert np.allclose(ds.eastern_coast_lon.isel(basin=0).values[inside], 60.0)
+    assert np.allclose(ds.western_coast_lon.isel(basin=0).values[inside] % 360, 0.0)
     # The interior transport changes sign where curl tau = 0 (derived: k tan(k (phi - phi_s))
     # = -tan(phi)), found here by bisection.
     def f(p):
@@ -116,8 +116,8 @@ def test_reference_value_sverdrup_transport_at_30n():
     ty = field(a * np.deg2rad(lon)[None, :] * np.ones((lat.size, 1)), lat, lon)
     # A regional grid: land columns at both ends give the basin its coasts.
     ty[:, [0, -1]] = np.nan
-    ds = sverdrup(0 * ty, ty, min_width=0)
-    v = ds.meridional_transport.sel(lat=30.0).isel(lon=slice(2, -2))
+    ds = sverdrup_transport(0 * ty, ty, min_width_km=0)
+    v = ds.sverdrup_northward_transport.sel(lat=30.0).isel(lon=slice(2, -2))
     assert float(v.mean()) == pytest.approx(4.92, rel=2e-3)
     width = float(R * np.cos(np.deg2rad(30)) * np.deg2rad(58))
     assert float(row(ds, 30.0).interior_transport) == pytest.approx(4.92 * width / 1e6, rel=3e-3)
@@ -151,7 +151,7 @@ def world():
 
 
 def test_interior_plus_boundary_current_is_exactly_zero(world):
-    ds = sverdrup(world[0], world[1])
+    ds = sverdrup_transport(world[0], world[1])
     total = ds.interior_transport + ds.boundary_current_transport
     ok = np.isfinite(ds.interior_transport)
     assert ok.sum() > 50
@@ -161,10 +161,10 @@ def test_interior_plus_boundary_current_is_exactly_zero(world):
 def test_streamfunction_faces_zero_at_east_and_minus_transport_at_west(world):
     # Derived from the docstring's discretisation: psi_e + V_e dx_e / 2 = 0 at the eastern face
     # of each run, psi_w - V_w dx_w / 2 = -T at the western face of a single-run row.
-    ds = sverdrup(world[0], world[1])
+    ds = sverdrup_transport(world[0], world[1])
     lat = ds.lat.values
     d = dx(lat)
-    psi, v = ds.streamfunction.values, ds.meridional_transport.values
+    psi, v = ds.sverdrup_streamfunction.values, ds.sverdrup_northward_transport.values
     checked = 0
     for b in range(ds.sizes["basin"]):
         for j in np.flatnonzero(ds.row_status.values[b] == 0):
@@ -194,7 +194,7 @@ def test_large_island_splits_the_row_and_small_island_is_crossed():
     ocean = box(lat, lon, 0, 80, 10, 60)
     ocean &= ~box(lat, lon, 30, 40, 26, 36)  # 5 x 5 cells, about 1.1e6 km2: a large island
     ocean &= ~box(lat, lon, 60, 62, 44, 46)  # 1 cell, about 3.5e4 km2: a small island
-    ds = sverdrup(*linear_stress(ocean, lat, lon))
+    ds = sverdrup_transport(*linear_stress(ocean, lat, lon))
     assert ds.sizes["basin"] == 1
     # Hand count: 40 cells across the basin; the large island takes 5 of them at 31N; the
     # small island at 45N is crossed with interpolated stress (exact for a stress linear in
@@ -205,12 +205,12 @@ def test_large_island_splits_the_row_and_small_island_is_crossed():
         assert int(row(ds, la).row_status) == 0
     # The streamfunction restarts at zero on the island's western coast (face at 30E).
     r = ds.sel(lat=31.0)
-    v29 = float(r.meridional_transport.sel(lon=29.0))
-    assert float(r.streamfunction.sel(lon=29.0)) == pytest.approx(-v29 * dx(31.0) / 2 / 1e6,
+    v29 = float(r.sverdrup_northward_transport.sel(lon=29.0))
+    assert float(r.sverdrup_streamfunction.sel(lon=29.0)) == pytest.approx(-v29 * dx(31.0) / 2 / 1e6,
                                                                   rel=1e-12)
     assert np.all(r.integration_class.sel(lon=slice(30, 40)).values == 0)
     assert int(ds.integration_class.sel(lat=45.0, lon=61.0)) == 1
-    assert np.isfinite(float(ds.meridional_transport.sel(lat=45.0, lon=61.0)))
+    assert np.isfinite(float(ds.sverdrup_northward_transport.sel(lat=45.0, lon=61.0)))
 
 
 def test_gulf_behind_a_peninsula_is_marginal_and_not_counted():
@@ -218,27 +218,27 @@ def test_gulf_behind_a_peninsula_is_marginal_and_not_counted():
     ocean = box(lat, lon, 0, 80, 10, 60)
     ocean &= ~box(lat, lon, 20, 26, 20, 40)  # peninsula, 20-26E from 20N
     ocean &= ~box(lat, lon, 0, 26, 36, 40)  # joined to the western continent at 36-40N
-    ds = sverdrup(*linear_stress(ocean, lat, lon))
+    ds = sverdrup_transport(*linear_stress(ocean, lat, lon))
     assert ds.sizes["basin"] == 1  # the gulf (about 3.6e6 km2) is a marginal sea
     # Hand count: the open basin at 21-35N is 26-80E, 27 cells; the gulf 0-20E is excluded.
     for la in (21.0, 27.0, 35.0):
         expected = v_linear(la) * dx(la) * 27 / 1e6
         assert float(row(ds, la).interior_transport) == pytest.approx(expected, rel=5e-3)
-        assert float(row(ds, la).western_boundary_lon) == pytest.approx(26.0)
+        assert float(row(ds, la).western_coast_lon) == pytest.approx(26.0)
         assert np.all(ds.integration_class.sel(lat=la, lon=slice(0, 20)).values == 2)
     # South of the peninsula the row is open from 80E to 0E: 40 cells.
     assert float(row(ds, 15.0).interior_transport) == pytest.approx(
         v_linear(15.0) * dx(15.0) * 40 / 1e6, rel=5e-3)
     # The gulf has its own streamfunction from its own eastern coast, the peninsula at 20E.
     g = ds.sel(lat=27.0)
-    assert float(g.streamfunction.sel(lon=19.0)) == pytest.approx(
-        -float(g.meridional_transport.sel(lon=19.0)) * dx(27.0) / 2 / 1e6, rel=1e-12)
+    assert float(g.sverdrup_streamfunction.sel(lon=19.0)) == pytest.approx(
+        -float(g.sverdrup_northward_transport.sel(lon=19.0)) * dx(27.0) / 2 / 1e6, rel=1e-12)
 
 
 def test_circumpolar_channel_rows_have_no_eastern_coast():
     lat, lon = grid()
     ocean = box(lat, lon, -1, 361, -60, -40) | box(lat, lon, 0, 80, -40, -10)
-    ds = sverdrup(*linear_stress(ocean, lat, lon))
+    ds = sverdrup_transport(*linear_stress(ocean, lat, lon))
     chan = (lat > -60) & (lat < -40)
     status = ds.row_status.values
     rows_with_channel = status[:, chan]
@@ -246,7 +246,7 @@ def test_circumpolar_channel_rows_have_no_eastern_coast():
     assert np.all((rows_with_channel == 2) | (rows_with_channel == 4))
     assert np.any(rows_with_channel == 2)
     assert np.all(np.isnan(ds.interior_transport.values[:, chan]))
-    assert np.all(np.isnan(ds.streamfunction.values[chan]))
+    assert np.all(np.isnan(ds.sverdrup_streamfunction.values[chan]))
     assert "no_eastern_coast" in ds.row_status.attrs["flag_meanings"].split()
     basin_rows = (lat > -40) & (lat < -10)
     b = int(np.flatnonzero((status[:, basin_rows] == 0).any(axis=1))[0])
@@ -255,7 +255,7 @@ def test_circumpolar_channel_rows_have_no_eastern_coast():
 
 
 def test_two_oceans_joined_south_of_their_continents_are_separate_basins(world):
-    ds = sverdrup(world[0], world[1])
+    ds = sverdrup_transport(world[0], world[1])
     bid = ds.basin_id
     west = int(bid.sel(lat=21.0, lon=51.0))
     east = int(bid.sel(lat=21.0, lon=201.0))
@@ -268,12 +268,12 @@ def test_two_oceans_joined_south_of_their_continents_are_separate_basins(world):
 def test_equatorial_band_rows_are_left_empty_with_the_reason():
     lat, lon = grid()
     ocean = box(lat, lon, 0, 80, -20, 20)
-    ds = sverdrup(*linear_stress(ocean, lat, lon))
-    assert DEFAULT_EQUATORIAL_BAND == 3.0  # one default with ekman
+    ds = sverdrup_transport(*linear_stress(ocean, lat, lon))
+    assert DEFAULT_EQUATORIAL_HALF_WIDTH == 3.0  # one default with ekman
     band = np.abs(lat) < 3.0
     assert np.all(ds.row_status.values[0, band] == 1)
     assert np.all(np.isnan(ds.interior_transport.values[0, band]))
-    assert np.all(np.isnan(ds.meridional_transport.values[band]))
+    assert np.all(np.isnan(ds.sverdrup_northward_transport.values[band]))
     assert np.all(ds.row_status.values[0, (np.abs(lat) > 3) & (np.abs(lat) < 20)] == 0)
     assert "equatorial_band" in ds.interior_transport.attrs["comment"]
 
@@ -281,7 +281,7 @@ def test_equatorial_band_rows_are_left_empty_with_the_reason():
 def test_too_narrow_rows_are_left_empty():
     lat, lon = grid()
     ocean = box(lat, lon, 0, 80, 10, 40) | box(lat, lon, 0, 4, 40, 50)  # a 2-cell strait
-    ds = sverdrup(*linear_stress(ocean, lat, lon))
+    ds = sverdrup_transport(*linear_stress(ocean, lat, lon))
     assert int(row(ds, 45.0).row_status) == 3
     assert np.isnan(float(row(ds, 45.0).interior_transport))
 
@@ -292,7 +292,7 @@ def test_open_western_end_is_flagged_for_user_basins():
     tx, ty = linear_stress(ocean, lat, lon)
     basins = {"east": [(40, 0), (90, 0), (90, 50), (40, 50)],
               "west": [(-10, 0), (40, 0), (40, 50), (-10, 50)]}
-    ds = sverdrup(tx, ty, basins=basins)
+    ds = sverdrup_transport(tx, ty, basins=basins)
     assert list(ds.basin.values) == ["east", "west"]
     # The east basin ends at 40E on the west basin's water: no western coast.
     assert np.all(ds.row_status.sel(basin="east", lat=slice(11, 39)).values == 5)
@@ -312,17 +312,17 @@ def test_stress_gap_on_the_eastern_coast_is_filled_from_a_topographic_mask():
     ship = ocean & ~box(lat, lon, 56, 60, 10, 50)  # the coastal column was never observed
     tx_s, ty_s = tx.where(ship), ty.where(ship)
     mask = field(ocean, lat, lon, units="1")
-    ds = sverdrup(tx_s, ty_s, ocean_mask=mask)
+    ds = sverdrup_transport(tx_s, ty_s, ocean_mask=mask)
     # The coast is the mask's (60E), the stress of the gap extrapolated from the west
     # (common practice for ship-based climatologies); 30 cells count.
-    assert float(row(ds, 31.0).eastern_boundary_lon) == pytest.approx(60.0)
+    assert float(row(ds, 31.0).eastern_coast_lon) == pytest.approx(60.0)
     exp = v_linear(31.0) * dx(31.0) * 30 / 1e6
     assert float(row(ds, 31.0).interior_transport) == pytest.approx(exp, rel=5e-3)
     # Without the mask the coast moves one cell west.
-    ds2 = sverdrup(tx_s, ty_s)
-    assert float(row(ds2, 31.0).eastern_boundary_lon) == pytest.approx(56.0)
+    ds2 = sverdrup_transport(tx_s, ty_s)
+    assert float(row(ds2, 31.0).eastern_coast_lon) == pytest.approx(56.0)
     # With fill_gaps=False the gap stays missing and spoils its rows.
-    ds3 = sverdrup(tx_s, ty_s, ocean_mask=mask, fill_gaps=False)
+    ds3 = sverdrup_transport(tx_s, ty_s, ocean_mask=mask, fill_gaps=False)
     assert np.isnan(float(row(ds3, 31.0).interior_transport))
 
 
@@ -333,8 +333,8 @@ def test_a_month_with_a_missing_cell_is_filled():
     tx3 = xr.concat([tx, tx, tx], dim="time")
     ty3 = xr.concat([ty, ty, ty], dim="time")
     tx3[1, 40, 10] = np.nan  # 31N, 21E unobserved in one month
-    ds = sverdrup(tx3, ty3)
-    full = sverdrup(tx, ty)
+    ds = sverdrup_transport(tx3, ty3)
+    full = sverdrup_transport(tx, ty)
     # Exact for a stress linear in latitude (four-neighbour mean = own value).
     np.testing.assert_allclose(ds.interior_transport.isel(time=1), full.interior_transport,
                                rtol=1e-12, equal_nan=True)
@@ -362,20 +362,20 @@ def _to_convention(obj, kind):
 
 @pytest.mark.parametrize("kind", ["-180..180", "20..380", "descending lat", "descending lon"])
 def test_same_answers_for_every_longitude_convention_and_latitude_order(world, kind):
-    ref = sverdrup(world[0], world[1])
+    ref = sverdrup_transport(world[0], world[1])
     tx, ty = (_to_convention(a, kind) for a in world[:2])
-    ds = sverdrup(tx, ty)
+    ds = sverdrup_transport(tx, ty)
     assert list(ds.lon.values) == list(tx.lon.values)
     assert list(ds.lat.values) == list(tx.lat.values)
     got = ds.sortby("lat")
     np.testing.assert_allclose(got.interior_transport, ref.interior_transport, rtol=1e-12,
                                atol=1e-12, equal_nan=True)
     np.testing.assert_array_equal(got.row_status, ref.row_status)
-    for name in ("eastern_boundary_lon", "western_boundary_lon"):
+    for name in ("eastern_coast_lon", "western_coast_lon"):
         a, b = got[name].values % 360, ref[name].values % 360
         np.testing.assert_allclose(a, b, atol=1e-9, equal_nan=True)
     back = got.assign_coords(lon=got.lon.values % 360).sortby("lon")
-    np.testing.assert_allclose(back.streamfunction, ref.streamfunction, rtol=1e-12,
+    np.testing.assert_allclose(back.sverdrup_streamfunction, ref.sverdrup_streamfunction, rtol=1e-12,
                                atol=1e-12, equal_nan=True)
     np.testing.assert_array_equal(back.basin_id, ref.basin_id)
 
@@ -388,22 +388,22 @@ def _stack_time(a, n=4):
 def test_dask_chunks_over_time_and_longitude_give_the_same_answers_lazily(world):
     tx, ty, mask = world
     tx4, ty4 = _stack_time(tx), _stack_time(ty)
-    ref = sverdrup(tx4, ty4, ocean_mask=mask)
+    ref = sverdrup_transport(tx4, ty4, ocean_mask=mask)
     counter = CountingScheduler()
     with dask.config.set(scheduler=counter):
-        lazy = sverdrup(tx4.chunk({"time": 1, "lon": 45}), ty4.chunk({"time": 3, "lon": 30}),
+        lazy = sverdrup_transport(tx4.chunk({"time": 1, "lon": 45}), ty4.chunk({"time": 3, "lon": 30}),
                         ocean_mask=mask)
         assert counter.calls == 0
-        for name in ("streamfunction", "interior_transport", "gyre_boundary_lat"):
+        for name in ("sverdrup_streamfunction", "interior_transport", "gyre_boundary_lat"):
             assert isinstance(lazy[name].data, da.Array)
         got = lazy.compute()
     assert counter.calls > 0
-    for name in ("meridional_transport", "streamfunction", "interior_transport",
+    for name in ("sverdrup_northward_transport", "sverdrup_streamfunction", "interior_transport",
                  "boundary_current_transport", "gyre_boundary_lat", "wind_stress_curl"):
         np.testing.assert_allclose(got[name], ref[name], rtol=1e-12, atol=1e-15,
                                    equal_nan=True)
     # Linear in the stress: each time step is the scaled single-field answer.
-    single = sverdrup(tx, ty, ocean_mask=mask)
+    single = sverdrup_transport(tx, ty, ocean_mask=mask)
     np.testing.assert_allclose(got.interior_transport.isel(time=0),
                                0.5 * single.interior_transport, rtol=1e-12, equal_nan=True)
 
@@ -412,17 +412,17 @@ def test_leading_member_dimension_passes_through(world):
     tx, ty, mask = world
     txm = xr.concat([tx, 2 * tx], dim="member").assign_attrs(units="Pa")
     tym = xr.concat([ty, 2 * ty], dim="member").assign_attrs(units="Pa")
-    ds = sverdrup(txm, tym, ocean_mask=mask)
+    ds = sverdrup_transport(txm, tym, ocean_mask=mask)
     assert ds.interior_transport.dims == ("member", "basin", "lat")
-    assert ds.streamfunction.dims == ("member", "lat", "lon")
+    assert ds.sverdrup_streamfunction.dims == ("member", "lat", "lon")
     np.testing.assert_allclose(ds.interior_transport.isel(member=1),
                                2 * ds.interior_transport.isel(member=0), equal_nan=True)
 
 
 def test_stress_in_dyn_cm2_is_converted(world):
     tx, ty, mask = world
-    a = sverdrup(tx, ty)
-    b = sverdrup((tx * 10).assign_attrs(units="dyn/cm2"), (ty * 10).assign_attrs(units="dyn/cm2"))
+    a = sverdrup_transport(tx, ty)
+    b = sverdrup_transport((tx * 10).assign_attrs(units="dyn/cm2"), (ty * 10).assign_attrs(units="dyn/cm2"))
     np.testing.assert_allclose(a.interior_transport, b.interior_transport, rtol=1e-12,
                                equal_nan=True)
 
@@ -430,11 +430,11 @@ def test_stress_in_dyn_cm2_is_converted(world):
 def test_inputs_are_not_modified_and_metadata_is_complete(world):
     tx, ty, mask = world
     before = tx.copy(deep=True)
-    ds = sverdrup(tx, ty)
+    ds = sverdrup_transport(tx, ty)
     xr.testing.assert_identical(tx, before)
-    assert ds.streamfunction.attrs["units"] == "1e6 m3 s-1"
+    assert ds.sverdrup_streamfunction.attrs["units"] == "1e6 m3 s-1"
     assert ds.interior_transport.attrs["units"] == "1e6 m3 s-1"
-    assert ds.meridional_transport.attrs["units"] == "m2 s-1"
+    assert ds.sverdrup_northward_transport.attrs["units"] == "m2 s-1"
     assert ds.wind_stress_curl.attrs["units"] == "N m-3"
     for name, var in ds.data_vars.items():
         assert "long_name" in var.attrs, name
@@ -448,53 +448,53 @@ def test_inputs_are_not_modified_and_metadata_is_complete(world):
 
 def test_masks_polygons_and_basin_numbers_agree_with_automatic_basins(world):
     tx, ty, _ = world
-    auto = sverdrup(tx, ty)
+    auto = sverdrup_transport(tx, ty)
     names = list(auto.basin.values)
     masks = {n: auto.basin_id == k for k, n in enumerate(names)}
-    by_mask = sverdrup(tx, ty, basins=masks)
-    by_ids = sverdrup(tx, ty, basins=auto.basin_id)
+    by_mask = sverdrup_transport(tx, ty, basins=masks)
+    by_ids = sverdrup_transport(tx, ty, basins=auto.basin_id)
     assert list(by_ids.basin.values) == names
     for ds in (by_mask, by_ids):
         np.testing.assert_allclose(ds.interior_transport, auto.interior_transport,
                                    equal_nan=True)
     west = int(auto.basin_id.sel(lat=21.0, lon=51.0))
     poly = {"w": [(-10, -41), (100, -41), (100, 70), (-10, 70)]}
-    ds = sverdrup(tx, ty, basins=poly)
+    ds = sverdrup_transport(tx, ty, basins=poly)
     np.testing.assert_allclose(ds.interior_transport.sel(basin="w", lat=slice(-39, 59)),
                                auto.interior_transport.isel(basin=west).sel(lat=slice(-39, 59)),
                                equal_nan=True)
     # The same polygon in -180..180 longitudes on a -180..180 grid.
-    ds2 = sverdrup(_to_convention(tx, "-180..180"), _to_convention(ty, "-180..180"),
+    ds2 = sverdrup_transport(_to_convention(tx, "-180..180"), _to_convention(ty, "-180..180"),
                    basins=poly)
     np.testing.assert_allclose(ds2.interior_transport, ds.interior_transport, equal_nan=True)
     # Basin numbers on 0..360 applied to stress on -180..180 (and descending latitude): the
     # mask is matched point by point modulo 360, not rejected or interpolated.
     moved = [_to_convention(f, "-180..180").isel(lat=slice(None, None, -1)) for f in (tx, ty)]
-    ds3 = sverdrup(*moved, basins=auto.basin_id)
+    ds3 = sverdrup_transport(*moved, basins=auto.basin_id)
     np.testing.assert_allclose(ds3.interior_transport.sortby("lat"), auto.interior_transport,
                                equal_nan=True)
     with pytest.raises(ValueError, match="reindex_like"):
-        sverdrup(tx, ty, basins=auto.basin_id.assign_coords(lon=auto.lon + 0.5))
+        sverdrup_transport(tx, ty, basins=auto.basin_id.assign_coords(lon=auto.lon + 0.5))
 
 
 def test_bad_input_raises_errors_that_name_the_argument(world):
     tx, ty, mask = world
     with pytest.raises(ValueError, match="basins"):
-        sverdrup(tx, ty, basins="atlantis")
+        sverdrup_transport(tx, ty, basins="atlantis")
     with pytest.raises(TypeError, match="basins"):
-        sverdrup(tx, ty, basins=42)
+        sverdrup_transport(tx, ty, basins=42)
     with pytest.raises(ValueError, match="rho0"):
-        sverdrup(tx, ty, rho0=-1.0)
+        sverdrup_transport(tx, ty, rho0=-1.0)
     with pytest.raises(ValueError, match="continent_min_area"):
-        sverdrup(tx, ty, island_min_area=1e6, continent_min_area=1e5)
+        sverdrup_transport(tx, ty, island_min_area_km2=1e6, continent_min_area_km2=1e5)
     with pytest.raises(ValueError, match="ocean_mask"):
-        sverdrup(tx, ty, ocean_mask=mask.isel(lon=slice(0, 10)))
+        sverdrup_transport(tx, ty, ocean_mask=mask.isel(lon=slice(0, 10)))
     with pytest.raises(ValueError, match="overlap"):
-        sverdrup(tx, ty, basins={"a": mask.astype(bool), "b": mask.astype(bool)})
+        sverdrup_transport(tx, ty, basins={"a": mask.astype(bool), "b": mask.astype(bool)})
     with pytest.raises(ValueError, match="polygon"):
-        sverdrup(tx, ty, basins={"a": [(0, 0), (1, 1)]})
+        sverdrup_transport(tx, ty, basins={"a": [(0, 0), (1, 1)]})
     with pytest.raises(TypeError, match="taux"):
-        sverdrup(tx.values, ty)
+        sverdrup_transport(tx.values, ty)
 
 
 # ------------------------------------------------------------------------------------------
@@ -527,7 +527,7 @@ def _gyre_boundary(t, lat):
     return np.nan
 
 
-def _coads_sverdrup(path, etopo_path, *, use_speed):
+def _coads_sverdrup(path, etopo_path, *, use_wind_speed):
     from sverdrup_kit.io.readers import open_winds
     from sverdrup_kit.physics.stress import wind_stress
 
@@ -536,21 +536,21 @@ def _coads_sverdrup(path, etopo_path, *, use_speed):
         # tolerance below.
         warnings.simplefilter("ignore")
         w = open_winds(path)
-        speed = w["wind_speed"] if use_speed else None
-        st = wind_stress(w["u"], w["v"], drag="large-pond-1981", speed=speed)
+        speed = w["wind_speed"] if use_wind_speed else None
+        st = wind_stress(w["u"], w["v"], drag_law="large-pond-1981", wind_speed=speed)
         mean = st.mean("time")
     mask = _etopo_mask_on(mean, etopo_path)
-    return sverdrup(mean["taux"], mean["tauy"], basins="earth", ocean_mask=mask).compute()
+    return sverdrup_transport(mean["taux"], mean["tauy"], basins="earth", ocean_mask=mask).compute()
 
 
 @pytest.mark.realdata
 @pytest.mark.slow
-@pytest.mark.parametrize("use_speed", [False, True], ids=["vector-mean", "scalar-speed"])
+@pytest.mark.parametrize("use_wind_speed", [False, True], ids=["vector-mean", "scalar-speed"])
 def test_coads_sverdrup_transport_in_the_northern_subtropical_gyres(marine_climatology,
-                                                                    etopo60, use_speed):
+                                                                    etopo60, use_wind_speed):
     # Stress of the annual cycle: Large & Pond (1981) on each month's mean wind, either
     # |u| u from the monthly vector mean or |U| u with the monthly scalar-mean speed U.
-    ds = _coads_sverdrup(marine_climatology, etopo60, use_speed=use_speed)
+    ds = _coads_sverdrup(marine_climatology, etopo60, use_wind_speed=use_wind_speed)
     assert list(ds.basin.values) == ["atlantic", "pacific", "indian"]
     atl = ds.interior_transport.sel(basin="atlantic")
     pac = ds.interior_transport.sel(basin="pacific")
@@ -579,9 +579,9 @@ def test_coads_sverdrup_transport_in_the_northern_subtropical_gyres(marine_clima
     # Those rows start on the real eastern coasts: Africa/Europe (18W..10E) and North
     # America (125W..105W), and the Atlantic's western boundary lies in the Americas.
     for la in rows:
-        assert 340 <= float(ds.eastern_boundary_lon.sel(basin="atlantic", lat=la)) % 360 <= 370
-        assert 235 <= float(ds.eastern_boundary_lon.sel(basin="pacific", lat=la)) % 360 <= 255
-        assert 260 <= float(ds.western_boundary_lon.sel(basin="atlantic", lat=la)) % 360 <= 285
+        assert 340 <= float(ds.eastern_coast_lon.sel(basin="atlantic", lat=la)) % 360 <= 370
+        assert 235 <= float(ds.eastern_coast_lon.sel(basin="pacific", lat=la)) % 360 <= 255
+        assert 260 <= float(ds.western_coast_lon.sel(basin="atlantic", lat=la)) % 360 <= 285
     # The circumpolar band has no eastern coast in any basin.
     drake = ds.row_status.sel(lat=[-59.0, -57.0])
     assert np.all(drake.values == 2)
@@ -593,8 +593,8 @@ def test_coads_scalar_speed_stress_drives_a_stronger_gyre(marine_climatology, et
     # Stress is quadratic in the wind, so the stress of monthly vector-mean winds
     # underestimates it (REFERENCES.md: up to about 20%, Rosen & Ponte 2003); the scalar mean
     # speed restores part of it and the subtropical interior transport grows.
-    vec = _coads_sverdrup(marine_climatology, etopo60, use_speed=False)
-    spd = _coads_sverdrup(marine_climatology, etopo60, use_speed=True)
+    vec = _coads_sverdrup(marine_climatology, etopo60, use_wind_speed=False)
+    spd = _coads_sverdrup(marine_climatology, etopo60, use_wind_speed=True)
     for basin in ("atlantic", "pacific"):
         a = float(vec.interior_transport.sel(basin=basin, lat=[25.0, 27.0, 29.0]).mean())
         b = float(spd.interior_transport.sel(basin=basin, lat=[25.0, 27.0, 29.0]).mean())
@@ -612,8 +612,8 @@ def test_coordinates_named_like_an_old_analysis_file(world):
         out["COADSX"].attrs["units"] = "degrees_east"
         return out
 
-    ref = sverdrup(tx, ty)
-    ds = sverdrup(rename(tx), rename(ty))
+    ref = sverdrup_transport(tx, ty)
+    ds = sverdrup_transport(rename(tx), rename(ty))
     assert ds.interior_transport.dims == ("basin", "COADSY")
     np.testing.assert_array_equal(ds.interior_transport.values, ref.interior_transport.values)
 
@@ -624,9 +624,9 @@ def test_without_a_mask_dask_input_is_read_once_for_the_land_mask(world):
     tx4, ty4 = _stack_time(tx).chunk({"time": 2}), _stack_time(ty).chunk({"time": 2})
     counter = CountingScheduler()
     with dask.config.set(scheduler=counter):
-        lazy = sverdrup(tx4, ty4)
+        lazy = sverdrup_transport(tx4, ty4)
         assert counter.calls == 1
-    ref = sverdrup(tx4.compute(), ty4.compute())
+    ref = sverdrup_transport(tx4.compute(), ty4.compute())
     np.testing.assert_allclose(lazy.interior_transport, ref.interior_transport, equal_nan=True)
 
 
@@ -634,12 +634,12 @@ def test_same_numbers_on_a_distributed_cluster(world):
     distributed = pytest.importorskip("distributed")
     tx, ty, mask = world
     tx4, ty4 = _stack_time(tx), _stack_time(ty)
-    ref = sverdrup(tx4, ty4, ocean_mask=mask)
+    ref = sverdrup_transport(tx4, ty4, ocean_mask=mask)
     with distributed.Client(processes=False, n_workers=1, threads_per_worker=2,
                             dashboard_address=None):
-        got = sverdrup(tx4.chunk({"time": 1}), ty4.chunk({"time": 1}),
+        got = sverdrup_transport(tx4.chunk({"time": 1}), ty4.chunk({"time": 1}),
                        ocean_mask=mask).compute()
-    np.testing.assert_allclose(got.streamfunction, ref.streamfunction, rtol=1e-12,
+    np.testing.assert_allclose(got.sverdrup_streamfunction, ref.sverdrup_streamfunction, rtol=1e-12,
                                equal_nan=True)
     np.testing.assert_allclose(got.interior_transport, ref.interior_transport, rtol=1e-12,
                                equal_nan=True)
@@ -647,17 +647,17 @@ def test_same_numbers_on_a_distributed_cluster(world):
 
 def test_basin_masks_with_missing_values_count_as_outside(world):
     tx, ty, mask = world
-    auto = sverdrup(tx, ty)
+    auto = sverdrup_transport(tx, ty)
     m = (auto.basin_id == 0).astype(float).where(auto.basin_id == 0)  # 1 inside, NaN outside
-    ds = sverdrup(tx, ty, basins={"b0": m})
+    ds = sverdrup_transport(tx, ty, basins={"b0": m})
     np.testing.assert_allclose(ds.interior_transport.isel(basin=0),
                                auto.interior_transport.isel(basin=0), equal_nan=True)
 
 
 def test_longitude_before_latitude_in_the_dimension_order(world):
     tx, ty, mask = world
-    ref = sverdrup(tx, ty, ocean_mask=mask)
-    ds = sverdrup(tx.T, ty.T, ocean_mask=mask.T)
-    assert ds.streamfunction.dims == ("lon", "lat")
-    np.testing.assert_array_equal(ds.streamfunction.T.values, ref.streamfunction.values)
+    ref = sverdrup_transport(tx, ty, ocean_mask=mask)
+    ds = sverdrup_transport(tx.T, ty.T, ocean_mask=mask.T)
+    assert ds.sverdrup_streamfunction.dims == ("lon", "lat")
+    np.testing.assert_array_equal(ds.sverdrup_streamfunction.T.values, ref.sverdrup_streamfunction.values)
     np.testing.assert_array_equal(ds.interior_transport.values, ref.interior_transport.values)

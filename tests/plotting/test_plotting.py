@@ -20,8 +20,8 @@ import xarray as xr  # noqa: E402
 from matplotlib.colors import BoundaryNorm  # noqa: E402
 
 from sverdrup_kit import synthetic  # noqa: E402
-from sverdrup_kit.plotting import figures as plotting  # noqa: E402
 from sverdrup_kit.physics.operators import wind_stress_curl  # noqa: E402
+from sverdrup_kit.plotting import figures as plotting  # noqa: E402
 
 RHO0, CD, RHO_AIR = 1025.0, 1.2e-3, 1.22
 OMEGA, R = 7.292115e-5, 6.371e6
@@ -94,7 +94,7 @@ def fake_sverdrup(world):
     ds = xr.Dataset(
         {
             "wind_stress_curl": curl_t.mean("time"),
-            "streamfunction": (("lat", "lon"), psi_t.mean(0),
+            "sverdrup_streamfunction": (("lat", "lon"), psi_t.mean(0),
                                {"units": sv, "long_name": "Sverdrup streamfunction"}),
             "basin_id": (("lat", "lon"), basin_id),
             "interior_transport": (("basin", "lat"), interior_t.mean(0),
@@ -104,15 +104,15 @@ def fake_sverdrup(world):
             "interior_transport_by_time": (t_dims, interior_t,
                                            {"units": sv,
                                             "long_name": "Sverdrup interior transport"}),
-            "western_boundary_lon": (("basin", "lat"), west, {"units": "degrees_east"}),
-            "eastern_boundary_lon": (("basin", "lat"), east, {"units": "degrees_east"}),
+            "western_coast_lon": (("basin", "lat"), west, {"units": "degrees_east"}),
+            "eastern_coast_lon": (("basin", "lat"), east, {"units": "degrees_east"}),
             "row_status": (("basin", "lat"), status, FLAGS),
             "ocean_mask": world.ocean_mask,
             "taux": taux.mean("time").assign_attrs(units="Pa", long_name="eastward wind stress"),
             "tauy": tauy.mean("time").assign_attrs(units="Pa", long_name="northward wind stress"),
         },
         coords={"basin": basin, "lat": world.lat, "lon": world.lon, "time": world.time},
-        attrs={"equatorial_band": 3.0},
+        attrs={"equatorial_half_width": 3.0},
     )
     f = 2 * OMEGA * np.sin(np.deg2rad(ds.lat))
     pumping = (ds.wind_stress_curl / (RHO0 * f)).where(np.abs(ds.lat) >= 3)
@@ -321,7 +321,7 @@ def test_plot_transport_accepts_a_dataframe(strict, tmp_path, result):
 
 
 def test_map_streamfunction_from_a_bare_dataarray(strict, tmp_path, result):
-    fig, ax = plotting.map_streamfunction(result.streamfunction, width="page")
+    fig, ax = plotting.map_streamfunction(result.sverdrup_streamfunction, width="page")
     assert colorbar_label(fig) == "Sverdrup streamfunction (Sv)"
     assert [t.get_text() for t in fig.legends[0].get_texts()] == ["no Sverdrup solution"]
     save(fig, tmp_path, "psi_da")
@@ -393,7 +393,7 @@ def test_bad_arguments_name_themselves(result):
         plotting.map_curl(result, projection="mercator")
     with pytest.raises(ValueError, match="coastlines"):
         plotting.map_curl(result, coastlines="yes")
-    with pytest.raises(KeyError, match="streamfunction"):
+    with pytest.raises(KeyError, match="sverdrup_streamfunction"):
         plotting.map_streamfunction(result[["taux"]])
     with pytest.raises(ValueError, match="time"):
         plotting.plot_hovmoller(result.interior_transport)
