@@ -49,3 +49,241 @@ def test_dynamic_height_of_a_column_matches_gsw_check_values():
     np.testing.assert_allclose(row.A[:, 0], -c.GEO_STRF_DYN_HEIGHT, rtol=0, atol=6e-4)
     dpdz = np.gradient(c.P * 1e4, row.z)
     np.testing.assert_allclose(row.s[:, 0] / dpdz, c.SPECVOL_ANOM_STANDARD, rtol=1e-9)
+
+
+# --- an analytic sloping thermocline with a linear equation of state ---------------------------
+
+EOS = LinearEquationOfState(rho0=1025.0, alpha=2.0e-4, beta=7.6e-4, t0=10.0, s0=35.0)
+T_DEEP, DT, H_EAST, H_WEST = 4.0, 5.0, 300.0, 700.0
+LON_E, LON_W = 340.0, 290.0  # coasts (cell faces) of the invented basin
+TS_LAT = np.array([24.5, 25.5])
+TS_LON = np.arange(290.5, 340.0, 1.0)
+LEVELS = np.arange(0.0, 2000.1, 20.0)
+
+
+def thermocline_depth(lon):
+    return H_EAST + (H_WEST - H_EAST) * (LON_E - lon) / (LON_E - LON_W)
+
+
+def make_ts(bottom=None, lon=TS_LON):
+    """T/S (depth, lat, lon): T = T_DEEP + DT exp(-z/h(lon)), uniform salinity."""
+    z = LEVELS[:, None, None]
+    h = thermocline_depth(np.mod(lon, 360.0))[None, None, :]
+    t = T_DEEP + DT * np.exp(-z / h) + 0.0 * TS_LAT[None, :, None]
+    if bottom is not None:
+        t = np.where(z <= bottom[None, None, :], t, np.nan)
+    coords = {"depth": ("depth", LEVELS, {"units": "m", "positive": "down"}),
+              "lat": ("lat", TS_LAT, {"units": "degrees_north"}),
+              "lon": ("lon", lon, {"units": "degrees_east"})}
+    temp = xr.DataArray(t, dims=("depth", "lat", "lon"), coords=coords,
+                        attrs={"units": "degC"})
+    salt = xr.DataArray(np.where(np.isfinite(t), 35.0, np.nan), dims=temp.dims, coords=coords,
+                        attrs={"units": "1"})
+    return temp, salt
+
+
+def fake_sverdrup(v_value=-5.0, v_west_of=None):
+    """A Sverdrup result for one invented basin between LON_W and LON_E on a 2 degree grid."""
+    lat = np.arange(21.0, 30.0, 2.0)
+    lon = np.arange(281.0, 360.0, 2.0)
+    inside = (lon > LON_W) & (lon < LON_E)
+    v = np.where(inside, v_value, np.nan) * np.ones((lat.size, 1))
+    if v_west_of is not None:
+        v = np.where(lon[None, :] < v_west_of, v, 0.0 * v)
+    nb = (1, lat.size)
+    return xr.Dataset(
+        {
+            "sverdrup_northward_transport": (("lat", "lon"), v, {"units": "m2 s-1"}),
+            "eastern_coast_lon": (("basin", "lat"), np.full(nb, LON_E)),
+            "western_coast_lon": (("basin", "lat"), np.full(nb, LON_W)),
+            "row_status": (("basin", "lat"), np.zeros(nb, dtype=np.int8)),
+        },
+        coords={"basin": ["invented"], "lat": lat, "lon": lon},
+        attrs={"rho0": 1025.0},
+    )
+
+
+def chi(h, zr):
+    """int_0^zr Psi dz for T = T_DEEP + DT exp(-z/h), up to an h-independent constant."""
+    e = np.exp(-zr / h)
+    return EOS.gravity * EOS.alpha * DT * (h**2 * (1.0 - e) - h * zr * e)
+
+
+def coriolis(lat):
+    return 2.0 * OMEGA * np.sin(np.deg2rad(lat))
+
+
+def test_sloping_thermocline_matches_closed_form():
+    # Closed form derived from the thermal wind of T = T_DEEP + DT exp(-z/h(x)) under a linear
+    # equation of state (derived here): T = (chi(h_E) - chi(h_W)) / f.
+    temp, salt = make_ts()
+    p_ref = 1500.0
+    out = geostrophic_transport(temp, salt, sverdrup_result=fake_sverdrup(),
+                                reference_pressure=p_ref, western_limit=TS_LON[0],
+                                equation_of_state=EOS)
+    zr = EOS.depth_from_pressure(p_ref)
+    h_e, h_w = thermocline_depth(TS_LON[-1]), thermocline_depth(TS_LON[0])
+    expected = (chi(h_e, zr) - chi(h_w, zr)) / coriolis(TS_LAT) / 1e6
+    got = out.geostrophic_transport.sel(basin="invented").values
+    np.testing.assert_allclose(got, expected, rtol=5e-3)
+    assert np.all(expected < -10)  # deeper warm water in the west: southward, as in a gyre
+    assert out.span_east_lon.values.tolist() == [[339.5, 339.5]]
+    assert out.span_west_lon.values.tolist() == [[290.5, 290.5]]
+    assert out.pairs.values.tolist() == [[TS_LON.size - 1] * 2]
+    assert out.pairs_above_reference.values.sum() == 0
+    # The zonal profile: from the first station to one in the middle, the same closed form.
+    mid = 315.5
+    part = out.geostrophic_cumulative_transport.sel(basin="invented", lon=mid).values
+    np.testing.assert_allclose(
+        part, (chi(h_e, zr) - chi(thermocline_depth(mid), zr)) / coriolis(TS_LAT) / 1e6,
+        rtol=5e-3)
+
+
+def test_shallow_column_uses_the_deepest_common_level_and_is_counted():
+    # Closed form as above (derived here): the two pairs touching a column 1000 m deep are
+    # referenced at 1000 m, the others at the reference pressure.
+    bottom = np.full(TS_LON.size, 5000.0)
+    k = int(np.flatnonzero(TS_LON == 315.5)[0])
+    bottom[k] = 1000.0
+    temp, salt = make_ts(bottom)
+    out = geostrophic_transport(temp, salt, sverdrup_result=fake_sverdrup(),
+                                reference_pressure=1500.0, western_limit=TS_LON[0],
+                                equation_of_state=EOS)
+    zr = EOS.depth_from_pressure(1500.0)
+    h = thermocline_depth
+    lon_e, lon_a, lon_b, lon_w = TS_LON[-1], TS_LON[k + 1], TS_LON[k - 1], TS_LON[0]
+    total = (chi(h(lon_e), zr) - chi(h(lon_a), zr) + chi(h(lon_a), 1000.0)
+             - chi(h(lon_b), 1000.0) + chi(h(lon_b), zr) - chi(h(lon_w), zr))
+    np.testing.assert_allclose(out.geostrophic_transport.sel(basin="invented"),
+                               total / coriolis(TS_LAT) / 1e6, rtol=5e-3)
+    assert out.pairs_above_reference.values.tolist() == [[2, 2]]
+
+
+def test_reference_velocity_adds_its_transport():
+    # Derived: a uniform velocity v at the reference level adds v z_r L over a span of width L.
+    temp, salt = make_ts()
+    kw = dict(sverdrup_result=fake_sverdrup(), reference_pressure=1500.0,
+              western_limit=TS_LON[0], equation_of_state=EOS)
+    plain = geostrophic_transport(temp, salt, **kw)
+    v = xr.full_like(temp.isel(depth=0), 0.01).assign_attrs(units="m s-1")
+    moving = geostrophic_transport(temp, salt, reference_velocity=v, **kw)
+    width = R * np.cos(np.deg2rad(TS_LAT)) * np.deg2rad(TS_LON[-1] - TS_LON[0])
+    added = 0.01 * EOS.depth_from_pressure(1500.0) * width / 1e6
+    np.testing.assert_allclose(
+        (moving.geostrophic_transport - plain.geostrophic_transport).sel(basin="invented"),
+        added, rtol=1e-9)
+
+
+def test_bottom_reference_equals_a_fixed_reference_at_a_flat_bottom():
+    # Common practice: with every column 2000 m deep, "bottom" is a reference at 2000 m.
+    temp, salt = make_ts()
+    kw = dict(sverdrup_result=fake_sverdrup(), western_limit=TS_LON[0], equation_of_state=EOS)
+    bottom = geostrophic_transport(temp, salt, reference_pressure="bottom", **kw)
+    fixed = geostrophic_transport(
+        temp, salt, reference_pressure=float(EOS.pressure_from_depth(2000.0)), **kw)
+    np.testing.assert_allclose(bottom.geostrophic_transport, fixed.geostrophic_transport,
+                               rtol=1e-9)
+    zr = 2000.0
+    expected = (chi(thermocline_depth(TS_LON[-1]), zr) - chi(thermocline_depth(TS_LON[0]), zr)
+                ) / coriolis(TS_LAT) / 1e6
+    np.testing.assert_allclose(bottom.geostrophic_transport.sel(basin="invented"), expected,
+                               rtol=5e-3)
+
+
+def test_same_answer_in_any_longitude_convention_and_latitude_order():
+    # Common practice (GSW's longitude-shift check, generalised): the grid's conventions must not
+    # change the numbers.
+    temp, salt = make_ts()
+    kw = dict(sverdrup_result=fake_sverdrup(), reference_pressure=[1000.0, 1500.0],
+              western_limit=-69.5, equation_of_state=EOS)
+    ref = geostrophic_transport(temp, salt, **kw)
+    shifted = [a.assign_coords(lon=a.lon - 360.0).isel(lat=slice(None, None, -1),
+                                                       depth=slice(None, None, -1))
+               for a in (temp, salt)]
+    out = geostrophic_transport(*shifted, **kw)
+    np.testing.assert_allclose(out.geostrophic_transport.sel(lat=TS_LAT),
+                               ref.geostrophic_transport, rtol=1e-12)
+    np.testing.assert_allclose(out.span_west_lon.sel(lat=TS_LAT), ref.span_west_lon - 360.0)
+    assert ref.geostrophic_transport.dims == ("reference_pressure", "basin", "lat")
+
+
+def test_balance_check_integrates_sverdrup_and_ekman_over_the_stations():
+    # Derived: V = -5 m2 s-1 west of 320E and 0 east of it on the 2 degree grid; uniform
+    # taux = -0.08 Pa gives V_E = 0.08 / (rho0 f) per unit width; both over the stations'
+    # span 339.5E to 290.5E (the 2 degree cells are cut at 290.5E).
+    temp, salt = make_ts()
+    sv = fake_sverdrup(v_value=-5.0, v_west_of=320.0)
+    taux = xr.full_like(sv.sverdrup_northward_transport, -0.08).assign_attrs(units="Pa")
+    out = balance_check(sv, temp, salt, taux, reference_pressure=1500.0,
+                        western_limit=TS_LON[0], equation_of_state=EOS)
+    m_per_deg = R * np.cos(np.deg2rad(TS_LAT)) * np.pi / 180.0
+    interior = -5.0 * (320.0 - 290.5) * m_per_deg / 1e6
+    ekman = 0.08 / (1025.0 * coriolis(TS_LAT)) * (339.5 - 290.5) * m_per_deg / 1e6
+    b = out.sel(basin="invented")
+    np.testing.assert_allclose(b.interior_transport, interior, rtol=1e-9)
+    np.testing.assert_allclose(b.ekman_transport, ekman, rtol=1e-9)
+    np.testing.assert_allclose(b.residual, interior - b.geostrophic_transport - ekman,
+                               rtol=1e-9)
+    # Profiles: nothing of the Sverdrup flow east of 320E, all of it at the last station.
+    np.testing.assert_allclose(b.interior_cumulative_transport.sel(lon=320.5), 0.0, atol=1e-12)
+    np.testing.assert_allclose(b.interior_cumulative_transport.sel(lon=290.5), interior)
+    assert b.residual_cumulative_transport.sel(lon=339.5).values.tolist() == [0.0, 0.0]
+
+
+def test_kinds_from_standard_names_and_defaults_are_recorded():
+    temp, salt = make_ts()
+    sv = fake_sverdrup()
+    out = geostrophic_transport(temp, salt, sverdrup_result=sv, western_limit=TS_LON[0])
+    assert out.attrs["temperature_kind"] == "in-situ"
+    assert out.attrs["temperature_kind_from"].startswith("default")
+    ds = xr.Dataset({
+        "thetao": temp.assign_attrs(standard_name="sea_water_conservative_temperature"),
+        "so": salt.assign_attrs(standard_name="sea_water_absolute_salinity", units="g kg-1"),
+    })
+    out2 = geostrophic_transport(ds, sverdrup_result=sv, western_limit=TS_LON[0])
+    assert out2.attrs["temperature_kind"] == "conservative"
+    assert out2.attrs["salinity_kind"] == "absolute"
+    # Conservative temperature read as in-situ changes the transport, so the kind matters.
+    assert not np.allclose(out.geostrophic_transport, out2.geostrophic_transport)
+
+
+def test_inputs_are_not_modified():
+    temp, salt = make_ts()
+    sv = fake_sverdrup()
+    taux = xr.full_like(sv.sverdrup_northward_transport, -0.08).assign_attrs(units="Pa")
+    copies = [a.copy(deep=True) for a in (temp, salt, sv, taux)]
+    balance_check(sv, temp, salt, taux, western_limit=TS_LON[0])
+    for a, c in zip((temp, salt, sv, taux), copies):
+        xr.testing.assert_identical(a, c)
+
+
+@pytest.mark.parametrize(
+    "change, match",
+    [
+        (dict(reference_pressure="surface"), "reference_pressure: expected"),
+        (dict(reference_pressure=-5.0), "reference_pressure: expected positive"),
+        (dict(temperature_kind="potentially"), "temperature_kind: expected one of"),
+        (dict(western_limit={"atlantis": 300.0}), "western_limit: expected keys"),
+        (dict(boundary_layer_km=-1.0), "boundary_layer_km: expected"),
+        (dict(sverdrup_result=xr.Dataset()), "sverdrup_result: expected the variables"),
+    ],
+)
+def test_bad_options_say_what_and_how_to_fix(change, match):
+    temp, salt = make_ts()
+    kw = dict(sverdrup_result=fake_sverdrup(), western_limit=TS_LON[0])
+    kw.update(change)
+    with pytest.raises(ValueError, match=match) as err:
+        geostrophic_transport(temp, salt, **kw)
+    assert "Fix" in str(err.value) or "expected" in str(err.value)
+
+
+def test_bad_units_are_refused():
+    temp, salt = make_ts()
+    sv = fake_sverdrup()
+    with pytest.raises(ValueError, match="temperature: expected units of degrees Celsius"):
+        geostrophic_transport(temp.assign_attrs(units="degF"), salt, sverdrup_result=sv)
+    with pytest.raises(ValueError, match="salinity: expected values of 0-50"):
+        geostrophic_transport(temp, salt / 1000.0 * 0 + 350.0, sverdrup_result=sv)
+    with pytest.raises(ValueError, match="temperature: expected dimensions"):
+        geostrophic_transport(temp.expand_dims(time=2), salt.expand_dims(time=2),
+                              sverdrup_result=sv)
