@@ -40,6 +40,7 @@ import numpy as np
 import xarray as xr
 
 from . import constants
+from .errors import InputError
 from .geometry.coords import grid_layout
 from .geometry.grid import SphericalGrid, cell_edges
 from .ocean.hydrography import (
@@ -118,13 +119,13 @@ def make_hydrography(sverdrup_result: xr.Dataset, taux: xr.DataArray, *,
     lay = _check_sverdrup_result(sverdrup_result, "sverdrup_result")
     levels = np.asarray(levels, dtype=np.float64)
     if levels.ndim != 1 or levels.size < 2 or levels[0] != 0 or np.any(np.diff(levels) <= 0):
-        raise ValueError(
+        raise InputError(
             f"levels: expected increasing depths in m starting at 0, found {levels!r}. Fix: "
             "e.g. levels=[0, 10, 20, 30, 50, 75, 100, ...]."
         )
     tl = grid_layout(taux, argname="taux")
     if tl.lat.shape != lay.lat.shape or not np.allclose(tl.lat, lay.lat):
-        raise ValueError(
+        raise InputError(
             "taux: expected the grid of sverdrup_result, found another grid. Fix: pass the "
             "stress the Sverdrup transport was computed from."
         )

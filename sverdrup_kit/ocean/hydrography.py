@@ -30,7 +30,8 @@ import numpy as np
 import xarray as xr
 
 from .. import constants
-from ..geometry.coords import GridError, grid_layout, require_dataarray
+from ..errors import GridError, InputError, UnitsError
+from ..geometry.coords import grid_layout, require_dataarray
 from ..geometry.grid import SphericalGrid, cell_edges
 from ..io.units import to_si
 
@@ -146,7 +147,7 @@ def _pick_variable(ds: xr.Dataset, argname: str, standard_names, unit_set, words
         text = _fold(name) + _fold(da.attrs.get("long_name", ""))
         if _fold(da.attrs.get("units", "")) in unit_set and any(w in text for w in words):
             return da
-    raise ValueError(
+    raise InputError(
         f"{argname}: expected a Dataset with a variable whose standard_name is one of "
         f"{sorted(standard_names)} (or whose name and units say so), found variables "
         f"{list(ds.data_vars)}. Fix: pass the DataArray itself, e.g. {argname}=ds['TEMP']."
@@ -176,7 +177,7 @@ def _kind(da, given, table, kinds, default, argname):
     """The kind of temperature or salinity, and where the choice came from."""
     if given is not None:
         if given not in kinds:
-            raise ValueError(
+            raise InputError(
                 f"{argname}: expected one of {list(kinds)}, found {given!r}. Fix: say which "
                 "the data are, e.g. from the file's documentation."
             )
@@ -193,7 +194,7 @@ def _temperature_celsius(t: xr.DataArray) -> xr.DataArray:
         return t.astype(np.float64)
     if units in _KELVIN:
         return t.astype(np.float64) - 273.15
-    raise ValueError(
+    raise UnitsError(
         f"temperature: expected units of degrees Celsius or kelvin (degC, deg C, "
         f"degree_Celsius, K), found {t.attrs.get('units')!r}. Fix: convert, or set "
         "temperature.attrs['units'] = 'degC' if the values are in Celsius."
@@ -206,7 +207,7 @@ def _salinity_kind_from_units(s: xr.DataArray):
         return "absolute"
     if units in _PRACTICAL_UNITS:
         return None
-    raise ValueError(
+    raise UnitsError(
         f"salinity: expected practical salinity (units 1, 1e-3, PSU, PSS-78 or PPT) or "
         f"absolute salinity (g kg-1), found units {s.attrs.get('units')!r}. Fix: convert, or "
         "set salinity.attrs['units'] to one of those."
@@ -381,7 +382,7 @@ def _check_sverdrup_result(ds, argname: str):
         )
     missing = [v for v in _SVERDRUP_VARS if v not in ds]
     if missing:
-        raise ValueError(
+        raise InputError(
             f"{argname}: expected the variables {list(_SVERDRUP_VARS)} of a sverdrup_transport "
             f"result, found {sorted(ds.data_vars)} (missing {missing}). Fix: pass the whole "
             "result of sverdrup_transport, computed with this version of sverdrup_kit."
@@ -390,7 +391,7 @@ def _check_sverdrup_result(ds, argname: str):
     extra = [d for d in ds["sverdrup_northward_transport"].dims
              if d not in (lay.lat_name, lay.lon_name)]
     if extra:
-        raise ValueError(
+        raise InputError(
             f"{argname}: expected a result without leading dimensions, found {extra}. Fix: "
             f"compute the Sverdrup transport from the time-mean stress, or select one step, e.g. "
             f"{argname}.isel({extra[0]}=0)."
@@ -406,7 +407,7 @@ def _western_limits(western_limit, basins, lat_ts):
     if isinstance(western_limit, Mapping):
         unknown = [b for b in western_limit if b not in basins]
         if unknown:
-            raise ValueError(
+            raise InputError(
                 f"western_limit: expected keys among the basins {list(basins)}, found "
                 f"{unknown}. Fix: use the basin names of the Sverdrup result."
             )
@@ -421,13 +422,13 @@ def _western_limits(western_limit, basins, lat_ts):
             wl = western_limit.sel(basin=list(basins)).interp(
                 {latname: lat_ts}, method="nearest")
             return np.asarray(wl.transpose("basin", latname).values, dtype=float)
-        raise ValueError(
+        raise InputError(
             f"western_limit: expected a DataArray over (basin, latitude), found dims {lay}. "
             "Fix: pass a float, a dict basin -> longitude, or such a DataArray."
         )
     value = float(western_limit)
     if not np.isfinite(value):
-        raise ValueError(f"western_limit: expected a longitude in degrees, found {value!r}.")
+        raise InputError(f"western_limit: expected a longitude in degrees, found {value!r}.")
     out[:] = value
     return out
 
@@ -436,7 +437,7 @@ def _references(reference_pressure):
     """List of references (float dbar or None for 'bottom') and whether to add a dimension."""
     if isinstance(reference_pressure, str):
         if reference_pressure != "bottom":
-            raise ValueError(
+            raise InputError(
                 f"reference_pressure: expected a pressure in dbar, a list of them, or "
                 f"'bottom', found {reference_pressure!r}. Fix: e.g. reference_pressure=2000.0."
             )
@@ -445,7 +446,7 @@ def _references(reference_pressure):
         reference_pressure, str)
     values = list(np.atleast_1d(np.asarray(reference_pressure, dtype=float)))
     if not values or not all(np.isfinite(v) and v > 0 for v in values):
-        raise ValueError(
+        raise InputError(
             f"reference_pressure: expected positive pressures in dbar, found "
             f"{reference_pressure!r}. Fix: e.g. reference_pressure=2000.0 or [1500, 2000]."
         )
@@ -467,7 +468,7 @@ def _prepare_ts(temperature, salinity, temperature_kind, salinity_kind, equation
         )
     extra = [d for d in temperature.dims if d not in (zname, lat, lon)]
     if extra:
-        raise ValueError(
+        raise InputError(
             f"temperature: expected dimensions (depth, lat, lon), found extra {extra}. Fix: "
             f"average or select first, e.g. temperature.mean('{extra[0]}')."
         )
@@ -487,7 +488,7 @@ def _prepare_ts(temperature, salinity, temperature_kind, salinity_kind, equation
     s_np = np.asarray(s.values, dtype=np.float64)[order][:, lay.lat_order][:, :, lay.lon_order]
     bad = np.isfinite(s_np) & ((s_np < 0) | (s_np > 50))
     if bad.any():
-        raise ValueError(
+        raise InputError(
             f"salinity: expected values of 0-50 (practical salinity or g kg-1), found "
             f"{np.nanmin(s_np):g}..{np.nanmax(s_np):g}. Fix: convert the units (kg kg-1 "
             "values must be multiplied by 1000) or mask fill values."
@@ -689,7 +690,7 @@ def _geostrophic(temperature, salinity, *, sverdrup_result, reference_pressure,
             f"{type(equation_of_state).__name__}. Fix: e.g. LinearEquationOfState(alpha=2e-4)."
         )
     if not (np.isfinite(boundary_layer_km) and boundary_layer_km >= 0):
-        raise ValueError(
+        raise InputError(
             f"boundary_layer_km: expected a width >= 0 in km, found {boundary_layer_km!r}. "
             "Fix: e.g. 500.0."
         )
@@ -710,7 +711,7 @@ def _geostrophic(temperature, salinity, *, sverdrup_result, reference_pressure,
             )
         units = str(reference_velocity.attrs.get("units", "m s-1"))
         if _fold(units) not in ("ms1", "mpers", "ms"):
-            raise ValueError(
+            raise UnitsError(
                 f"reference_velocity: expected units m s-1, found {units!r}. Fix: convert."
             )
         v_ref = np.asarray(reference_velocity.transpose(vl.lat_name, vl.lon_name).values,
@@ -786,7 +787,7 @@ def _geostrophic(temperature, salinity, *, sverdrup_result, reference_pressure,
                 if ref is not None:
                     zr = float(_depth_of(ref, lat_ts[j], equation_of_state))
                 tp, shallow, unusable, _ = _pair_transports(row, cols, f_all[j], zr, vr, dx_pair)
-                c = np.concatenate([[0.0], np.cumsum(tp)]) / constants.SVERDRUP
+                c = np.concatenate([[0.0], np.cumsum(tp)]) / constants.SVERDRUP_IN_M3_S
                 cum[r, b, j, cols] = c
                 total[r, b, j] = c[-1]
                 counts["pairs"][r, b, j] = tp.size
@@ -982,14 +983,14 @@ def balance_check(
         )
     extra = [d for d in taux.dims if d not in (tl.lat_name, tl.lon_name)]
     if extra:
-        raise ValueError(
+        raise InputError(
             f"taux: expected (lat, lon), found extra dimensions {extra}. Fix: pass the time "
             f"mean the Sverdrup transport was computed from, e.g. taux.mean('{extra[0]}')."
         )
     if rho0 is None:
         rho0 = float(sverdrup_result.attrs.get("rho0", constants.RHO0))
     if not (np.isfinite(rho0) and rho0 > 0):
-        raise ValueError(f"rho0: expected a positive density in kg m-3, found {rho0!r}.")
+        raise InputError(f"rho0: expected a positive density in kg m-3, found {rho0!r}.")
     geo, info = _geostrophic(
         temperature, salinity, sverdrup_result=sverdrup_result,
         reference_pressure=reference_pressure, reference_velocity=reference_velocity,
@@ -1019,7 +1020,7 @@ def balance_check(
         iv = _cell_overlap_integral(v[k], lon_lo, lon_hi, e, dists) * m_per_deg[j]
         ve = -tx[k] / (rho0 * info["f"][j])
         ie = _cell_overlap_integral(ve, lon_lo, lon_hi, e, dists) * m_per_deg[j]
-        iv, ie = (iv - iv[0]) / constants.SVERDRUP, (ie - ie[0]) / constants.SVERDRUP
+        iv, ie = (iv - iv[0]) / constants.SVERDRUP_IN_M3_S, (ie - ie[0]) / constants.SVERDRUP_IN_M3_S
         cum_i[b, j, cols] = iv
         cum_e[b, j, cols] = ie
         interior[b, j] = iv[-1]
