@@ -23,7 +23,8 @@ from .errors import (
 )
 from .io.readers import open_stress, open_winds
 from .io.writers import write_netcdf
-from .ocean.observations import boundary_current_observations
+from .ocean.hydrography import LinearEquationOfState, balance_check, geostrophic_transport
+from .ocean.observations import balance_section_observations, boundary_current_observations
 from .physics.barotropic import boundary_current, solve_barotropic, solve_basin
 from .physics.boundary_layers import (
     munk_boundary_layer,
@@ -43,6 +44,8 @@ __version__ = "0.1.0"
 
 __all__ = [
     "AIR_DENSITY",
+    "balance_check",
+    "balance_section_observations",
     "basin_ids",
     "beta_parameter",
     "boundary_current",
@@ -55,8 +58,10 @@ __all__ = [
     "DragLaw",
     "EARTH_RADIUS",
     "ekman",
+    "geostrophic_transport",
     "GridError",
     "InputError",
+    "LinearEquationOfState",
     "MonthlyMeanWindWarning",
     "munk_boundary_layer",
     "munk_edge_distance",

@@ -511,21 +511,32 @@ def _teos10(t, s, p, lon, lat, kinds):
     return sa, gsw.CT_from_t(sa, t, p)
 
 
-def _dynamic_height(sa, ct, p):
-    """gsw dynamic height anomaly relative to 0 dbar, (nz, nx); NaN where a column is empty.
+def _dynamic_height(sa, ct, p, delta):
+    """Dynamic height anomaly relative to 0 dbar, m2 s-2, (nz, nx); NaN where a column is empty.
 
-    The 'mrst' scheme needs four levels; shallower columns (two or three levels, on shelves)
-    use gsw's 'pchip' scheme.
+    gsw's 'mrst' scheme needs four levels. Shallower columns (two or three levels, on shelves)
+    integrate the specific volume anomaly ``delta`` by the trapezoidal rule instead: gsw's
+    other schemes corrupted memory on such columns of a 1 degree climatology (gsw 3.6).
     """
     levels = np.sum(np.isfinite(sa) & np.isfinite(ct), axis=0)
     out = np.full(sa.shape, np.nan)
-    for scheme, cols in ((_GSW_INTERP, levels >= 4), ("pchip", (levels >= 2) & (levels < 4))):
-        if cols.any():
-            with np.errstate(invalid="ignore"):
-                out[:, cols] = gsw.geo_strf_dyn_height(
-                    sa[:, cols], ct[:, cols], p, p_ref=0.0, axis=0, max_dp=_GSW_MAX_DP,
-                    interp_method=scheme)
+    deep = levels >= 4
+    if deep.any():
+        with np.errstate(invalid="ignore"):
+            out[:, deep] = gsw.geo_strf_dyn_height(
+                sa[:, deep], ct[:, deep], p, p_ref=0.0, axis=0, max_dp=_GSW_MAX_DP,
+                interp_method=_GSW_INTERP)
+    shelf = (levels >= 2) & ~deep
+    if shelf.any():
+        out[:, shelf] = -_trapezoid_from_surface(delta[:, shelf], p)
     return out
+
+
+def _trapezoid_from_surface(delta, p_dbar):
+    """int_0^p delta dp' (m2 s-2) at each level by the trapezoidal rule; NaN propagates."""
+    dp = np.diff(p_dbar)[:, None] * 1.0e4
+    return np.concatenate([np.zeros((1, delta.shape[1])),
+                           np.cumsum(dp * (delta[:-1] + delta[1:]) / 2.0, axis=0)])
 
 
 def _row_from_ts(t, s, zcoord, is_pressure, lat, lon, kinds, eos):
@@ -551,12 +562,10 @@ def _row_from_ts(t, s, zcoord, is_pressure, lat, lon, kinds, eos):
     if eos is None:
         sa, ct = _teos10(t, s, p[:, None], lon[None, :], lat, kinds)
         delta = gsw.specvol_anom_standard(sa, ct, p[:, None])
-        A = -_dynamic_height(sa, ct, p)
+        A = -_dynamic_height(sa, ct, p, delta)
     else:
         delta = eos.specific_volume_anomaly(t, s)
-        dp = np.diff(p)[:, None] * 1.0e4
-        A = np.concatenate([np.zeros((1, t.shape[1])),
-                            np.cumsum(dp * (delta[:-1] + delta[1:]) / 2.0, axis=0)])
+        A = _trapezoid_from_surface(delta, p)
     return _row_tables(A, delta, z, p)
 
 

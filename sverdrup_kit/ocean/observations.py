@@ -9,7 +9,12 @@ from __future__ import annotations
 import numpy as np
 import xarray as xr
 
-__all__ = ["boundary_current_observations", "OBSERVED_BOUNDARY_CURRENTS"]
+__all__ = [
+    "boundary_current_observations",
+    "OBSERVED_BOUNDARY_CURRENTS",
+    "balance_section_observations",
+    "OBSERVED_BALANCE_SECTIONS",
+]
 
 #: name, basin, latitude (degrees_north), transport (Sv, + northward), spread (Sv), what the
 #: spread is, source, and a note on what the number contains that Sverdrup dynamics does not.
@@ -77,4 +82,100 @@ def boundary_current_observations(basin: str | None = None) -> xr.Dataset:
         },
         coords={"current": names},
         attrs={"title": "observed western boundary current transports (published means)"},
+    )
+
+
+#: Sections across a whole basin that test Sverdrup balance: the parts of the transport that
+#: the balance speaks of, each with its component, latitude, longitudes of the part (degrees_east,
+#: NaN where the part has no single span), transport (Sv, + northward), spread, period and
+#: source. "from memory" marks numbers nobody here has re-read in the original.
+OBSERVED_BALANCE_SECTIONS = [
+    dict(name="RAPID 26.5N Florida Current", basin="atlantic", lat=26.5,
+         component="western boundary current", west_lon=-80.0, east_lon=-79.0,
+         transport=31.3, spread=3.2, spread_kind="standard deviation of the cable record",
+         period="2004-2022",
+         source="RAPID-MOCHA array and Florida Current cable, 2004-2022 means (McCarthy et "
+                "al. 2015, Prog. Oceanogr. 130, 91-111, for the method; from memory)",
+         note="about 13 Sv of it is the upper limb of the overturning (Schmitz & Richardson "
+              "1991, Deep-Sea Res.)"),
+    dict(name="RAPID 26.5N Ekman", basin="atlantic", lat=26.5, component="Ekman",
+         west_lon=-76.75, east_lon=-13.5, transport=3.8, spread=np.nan, spread_kind="",
+         period="2004-2022",
+         source="RAPID-MOCHA array, 2004-2022 means, from reanalysis winds (McCarthy et al. "
+                "2015; from memory)", note=""),
+    dict(name="RAPID 26.5N upper mid-ocean", basin="atlantic", lat=26.5,
+         component="interior geostrophic", west_lon=-76.75, east_lon=-13.5, transport=-18.1,
+         spread=3.5, spread_kind="standard deviation of 10-day means", period="2004-2022",
+         source="RAPID-MOCHA array, 2004-2022 means (McCarthy et al. 2015; from memory)",
+         note="geostrophic transport above about 1100 m between the Bahamas (Abaco) and Africa "
+              "from moored density profiles, with a reference chosen so that the section "
+              "conserves mass"),
+    dict(name="Pacific 24N, west of 137E", basin="pacific", lat=24.0,
+         component="interior residual", west_lon=np.nan, east_lon=137.0, transport=7.5,
+         spread=2.5, spread_kind="half the range of the quoted 5-10 Sv",
+         period="1985 section (from memory)",
+         source="Hautala, Roemmich & Schmitz 1994, J. Geophys. Res. 99, 16041-16052 (from "
+                "memory)",
+         note="geostrophic plus Ekman transport agrees with Sverdrup from the eastern boundary "
+              "to about 137E; west of it 5-10 Sv more northward flow than Sverdrup"),
+]
+
+_SECTION_COMPONENTS = ("western boundary current", "Ekman", "interior geostrophic",
+                       "interior residual")
+
+
+def balance_section_observations(basin: str | None = None) -> xr.Dataset:
+    """Observed parts of basin-wide sections that test Sverdrup balance, along ``observation``.
+
+    Parameters
+    ----------
+    basin : {"atlantic", "pacific"}, optional
+        Keep only sections of this basin.
+
+    Returns
+    -------
+    xarray.Dataset
+        ``transport`` and ``spread`` (1e6 m3 s-1, positive northward), ``lat``
+        (degrees_north), ``west_lon``/``east_lon`` (degrees_east) of the part, ``component``
+        (one of "western boundary current", "Ekman", "interior geostrophic", "interior
+        residual"), ``basin``, ``period``, ``source``, ``note`` and ``spread_kind``.
+
+    Notes
+    -----
+    The RAPID numbers are means of 2004-2022 and their spreads are the variability of the
+    record, not the error of the mean. The Pacific entry is a statement about the balance,
+    not a transport of one current: 5-10 Sv more northward flow west of 137E than Sverdrup.
+    """
+    rows = OBSERVED_BALANCE_SECTIONS
+    if basin is not None:
+        valid = sorted({r["basin"] for r in rows})
+        if basin not in valid:
+            raise ValueError(
+                f"basin: expected one of {valid}, found {basin!r}. Fix: pass one of those or None."
+            )
+        rows = [r for r in rows if r["basin"] == basin]
+
+    def col(key, **attrs):
+        return xr.DataArray([r[key] for r in rows], dims="observation", attrs=attrs)
+
+    return xr.Dataset(
+        {
+            "transport": col("transport", units="1e6 m3 s-1",
+                             long_name="observed transport of the part, positive northward"),
+            "spread": col("spread", units="1e6 m3 s-1", long_name="spread of the observed mean"),
+            "spread_kind": col("spread_kind"),
+            "lat": col("lat", units="degrees_north", long_name="latitude of the section"),
+            "west_lon": col("west_lon", units="degrees_east",
+                            long_name="western end of the part"),
+            "east_lon": col("east_lon", units="degrees_east",
+                            long_name="eastern end of the part"),
+            "component": col("component", long_name="what part of the transport",
+                             comment="; ".join(_SECTION_COMPONENTS)),
+            "basin": col("basin"),
+            "period": col("period"),
+            "source": col("source"),
+            "note": col("note"),
+        },
+        coords={"observation": [r["name"] for r in rows]},
+        attrs={"title": "observed sections that test Sverdrup balance (published means)"},
     )
