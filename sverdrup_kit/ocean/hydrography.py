@@ -206,7 +206,7 @@ def _salinity_kind_from_units(s: xr.DataArray):
     if units in _ABSOLUTE_UNITS:
         return "absolute"
     if units in _PRACTICAL_UNITS:
-        return None
+        return "practical" if units else None
     raise UnitsError(
         f"salinity: expected practical salinity (units 1, 1e-3, PSU, PSS-78 or PPT) or "
         f"absolute salinity (g kg-1), found units {s.attrs.get('units')!r}. Fix: convert, or "
