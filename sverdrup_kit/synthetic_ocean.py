@@ -27,6 +27,17 @@ vertical levels. The grid is 1 degree, finer than the world's 2 degree winds, wi
 the world's ocean mask; each 1 degree row takes the Sverdrup and Ekman transports of the 2 degree
 row that contains it, as :func:`~sverdrup_kit.balance_check` does.
 
+The method's error
+------------------
+On the default :data:`LEVELS` (25 m apart down to 2000 m) the balance check recovers the
+construction to better than 0.01 Sv on the synthetic world: the only departure is the surface
+cutting the logistic profile where the layer is thinnest, of order :math:`w^2 e^{-h/w}` in
+:math:`h^2/2` (derived), 0.003 Sv at most with these constants (measured). On the 20 standard
+levels of the Levitus (1982) climatology the 80 m interface is poorly resolved, and the residual
+grows to up to 5 Sv (rms about 1 Sv) for a 2000 dbar reference (measured): the vertical-resolution
+error of a dynamic-method estimate from such a climatology, pessimistic because the real
+thermocline is broader.
+
 References
 ----------
 Parsons, A. T. (1969). A two-layer model of Gulf Stream separation. J. Fluid Mech. 39, 511-528.

@@ -327,8 +327,9 @@ def _chi_at_pressure(row: _Row, zr: float):
 def _pair_transports(row: _Row, cols, f, zr, v_ref, dx_pair):
     """Transports (m3 s-1) between consecutive columns ``cols`` (ordered east to west).
 
-    Returns transport (npairs,), whether each pair used its deepest common level, and its
-    reference depth (m). ``zr`` None references every pair at its deepest common level.
+    Returns transport (npairs,), whether each pair used its deepest common level, and whether
+    it had no common level below the surface. ``zr`` None references every pair at its
+    deepest common level.
     """
     east, west = cols[:-1], cols[1:]
     k = np.minimum(row.bottom[east], row.bottom[west])
@@ -350,7 +351,7 @@ def _pair_transports(row: _Row, cols, f, zr, v_ref, dx_pair):
     if v_ref is not None:
         t = t + 0.5 * (v_ref[east] + v_ref[west]) * zref * dx_pair
     t = np.where(usable, t, 0.0)
-    return t, shallow, ~usable, np.where(usable, zref, np.nan)
+    return t, shallow, ~usable
 
 
 def _cell_overlap_integral(values, lon_lo, lon_hi, east, dist):
@@ -650,8 +651,10 @@ def geostrophic_transport(
     Notes
     -----
     Dynamic height anomaly relative to the surface, :math:`A(p) = \int_0^p \delta\,dp'`
-    with :math:`\delta` the specific volume anomaly (``gsw.geo_strf_dyn_height``, TEOS-10:
-    IOC, SCOR & IAPWS 2010, section 3.27), so that relative to a reference :math:`p_r`,
+    with :math:`\delta` the specific volume anomaly (``gsw.geo_strf_dyn_height`` with the
+    'mrst' interpolation of Barker & McDougall 2020 at a 5 dbar step; columns of two or three
+    levels by the trapezoidal rule; TEOS-10: IOC, SCOR & IAPWS 2010, section 3.27), so that
+    relative to a reference :math:`p_r`,
     :math:`\Psi(p) = A(p_r) - A(p)` and
 
     .. math:: \chi = \int_0^{z_r}\Psi\,dz = z_r A(p_r) - \int_0^{z_r} A\,dz, \qquad
@@ -678,6 +681,8 @@ def geostrophic_transport(
     Intergovernmental Oceanographic Commission, Manuals and Guides 56.
     McDougall, T. J. & Barker, P. M. (2011). Getting started with TEOS-10 and the Gibbs
     Seawater (GSW) Oceanographic Toolbox. SCOR/IAPWS WG127.
+    Barker, P. M. & McDougall, T. J. (2020). Two interpolation methods using multiply-rotated
+    piecewise cubic Hermite interpolating polynomials. J. Atmos. Oceanic Technol. 37, 605-619.
     """
     return _geostrophic(
         temperature, salinity, sverdrup_result=sverdrup_result,
@@ -795,7 +800,7 @@ def _geostrophic(temperature, salinity, *, sverdrup_result, reference_pressure,
                 zr = None
                 if ref is not None:
                     zr = float(_depth_of(ref, lat_ts[j], equation_of_state))
-                tp, shallow, unusable, _ = _pair_transports(row, cols, f_all[j], zr, vr, dx_pair)
+                tp, shallow, unusable = _pair_transports(row, cols, f_all[j], zr, vr, dx_pair)
                 c = np.concatenate([[0.0], np.cumsum(tp)]) / constants.SVERDRUP_IN_M3_S
                 cum[r, b, j, cols] = c
                 total[r, b, j] = c[-1]
