@@ -615,9 +615,9 @@ def geostrophic_transport(
         Longitude (degrees_east, any convention) where the sum stops in the west: one value for
         every basin, a dict basin name -> longitude, or a DataArray over (basin, latitude).
         Basins not given use the default: ``boundary_layer_km`` east of the row's western
-        coast, which leaves out the western boundary current. The literature's interior spans
-        start at 74.5W in the Atlantic at 24-27N (east of the Bahamas) and at 135.5E in the
-        Pacific at 24N.
+        coast, which leaves out the western boundary current. Interior sections in the
+        literature start east of the Bahamas in the Atlantic at 24-27N (74.5W on a 1 degree
+        grid) and east of the Kuroshio in the Pacific at 24N (135.5E).
     boundary_layer_km : float, optional
         Width left out next to the western coast where ``western_limit`` does not say.
     temperature_kind : {"in-situ", "potential", "conservative"}, optional

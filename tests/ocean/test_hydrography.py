@@ -205,6 +205,11 @@ def test_same_answer_in_any_longitude_convention_and_latitude_order():
                                ref.geostrophic_transport, rtol=1e-12)
     np.testing.assert_allclose(out.span_west_lon.sel(lat=TS_LAT), ref.span_west_lon - 360.0)
     assert ref.geostrophic_transport.dims == ("reference_pressure", "basin", "lat")
+    # The western limit as a DataArray over (basin, latitude) means the same.
+    limit = xr.DataArray([[-69.5, -69.5]], dims=("basin", "lat"),
+                         coords={"basin": ["invented"], "lat": TS_LAT})
+    per_row = geostrophic_transport(temp, salt, **{**kw, "western_limit": limit})
+    np.testing.assert_array_equal(per_row.geostrophic_transport, ref.geostrophic_transport)
 
 
 def test_balance_check_integrates_sverdrup_and_ekman_over_the_stations():
