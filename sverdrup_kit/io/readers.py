@@ -231,6 +231,10 @@ def _open(source, fields, chosen, func) -> xr.Dataset:
         name = _pick_variable(ds, field, chosen[field.key], func)
         if name is not None:
             picked[field.key] = (name, ds[name])
+    from .model_grid import assemble_on_model_grid, on_model_grid
+
+    if picked and on_model_grid(picked[fields[0].key][1]):
+        return assemble_on_model_grid(picked, fields, func, _describe(source), ds, warned)
     return _assemble(picked, fields, func, _describe(source), dict(ds.attrs), warned)
 
 

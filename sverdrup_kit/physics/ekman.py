@@ -7,6 +7,7 @@ import xarray as xr
 
 from .. import constants
 from ..geometry.coords import check_same_grid, require_dataarray
+from ..geometry.curvilinear import is_curvilinear
 from ..geometry.grid import SphericalGrid
 from ..io.units import to_si
 from .operators import curl_on_sphere
@@ -75,6 +76,11 @@ def ekman(
     Gill, A. E. (1982). Atmosphere-Ocean Dynamics. Academic Press, section 9.2.
     """
     taux = require_dataarray(taux, "taux")
+    if is_curvilinear(taux):
+        from .model_grid import model_grid_ekman
+
+        return model_grid_ekman(taux, require_dataarray(tauy, "tauy"), rho0=rho0,
+                                equatorial_half_width=equatorial_half_width, radius=radius)
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
     if not np.isfinite(equatorial_half_width) or equatorial_half_width <= 0:

@@ -8,6 +8,7 @@ from .. import constants
 from .._apply import apply_grid_kernel
 from .._compiled.dispatch import curl_kernel
 from ..geometry.coords import check_same_grid, from_canonical, require_dataarray, to_canonical
+from ..geometry.curvilinear import is_curvilinear
 from ..geometry.grid import SphericalGrid
 from ..io.units import to_si
 
@@ -72,6 +73,10 @@ def wind_stress_curl(taux, tauy, *, radius: float = constants.EARTH_RADIUS) -> x
     coordinates.
     """
     taux = require_dataarray(taux, "taux")
+    if is_curvilinear(taux):
+        from .model_grid import model_grid_curl
+
+        return model_grid_curl(taux, require_dataarray(tauy, "tauy"), radius=radius)
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
     grid = SphericalGrid.from_data(taux, argname="taux", radius=radius)

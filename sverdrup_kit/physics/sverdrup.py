@@ -37,6 +37,7 @@ from ..geometry.coords import (
     require_dataarray,
     to_canonical,
 )
+from ..geometry.curvilinear import is_curvilinear
 from ..geometry.grid import SphericalGrid
 from ..io.units import to_si
 from .ekman import DEFAULT_EQUATORIAL_HALF_WIDTH
@@ -236,6 +237,12 @@ def sverdrup_transport(
     allowing for island circulations. Geophys. Astrophys. Fluid Dyn. 45, 89-112.
     """
     taux = require_dataarray(taux, "taux")
+    if is_curvilinear(taux):
+        from .model_grid import model_grid_sverdrup
+
+        return model_grid_sverdrup(
+            taux, require_dataarray(tauy, "tauy"), ocean_mask=ocean_mask, basins=basins,
+            rho0=rho0, equatorial_half_width=equatorial_half_width, radius=radius, omega=omega)
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
     _check_positive(rho0, "rho0", fix="Fix: e.g. rho0=1025.0 (kg m-3).")
