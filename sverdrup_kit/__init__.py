@@ -13,6 +13,7 @@ marine operations.
 
 from .constants import AIR_DENSITY, EARTH_RADIUS, OMEGA, RHO0, SVERDRUP_IN_M3_S
 from .geometry.basins import basin_ids
+from .geometry.curvilinear import CurvilinearGrid
 from .geometry.grid import SphericalGrid, beta_parameter, coriolis_parameter
 from .errors import (
     GridError,
@@ -35,6 +36,7 @@ from .physics.boundary_layers import (
     stommel_width,
 )
 from .physics.ekman import ekman
+from .physics.model_grid import model_circulation, rotate_to_geographic, rotate_to_grid
 from .physics.operators import curl_on_sphere, wind_stress_curl
 from .physics.stress import DRAG_LAWS, DragLaw, drag_coefficient, wind_stress
 from .physics.sverdrup import sverdrup_transport
@@ -52,6 +54,7 @@ __all__ = [
     "boundary_current_observations",
     "coriolis_parameter",
     "curl_on_sphere",
+    "CurvilinearGrid",
     "diagnose",
     "drag_coefficient",
     "DRAG_LAWS",
@@ -59,6 +62,7 @@ __all__ = [
     "EARTH_RADIUS",
     "ekman",
     "geostrophic_transport",
+    "model_circulation",
     "GridError",
     "InputError",
     "LinearEquationOfState",
@@ -71,6 +75,8 @@ __all__ = [
     "open_stress",
     "open_winds",
     "RHO0",
+    "rotate_to_geographic",
+    "rotate_to_grid",
     "solve_barotropic",
     "solve_basin",
     "SphericalGrid",

@@ -56,7 +56,8 @@ def find_latlon(obj: xr.DataArray | xr.Dataset, *, argname: str = "data") -> tup
 
     Looks at CF attributes (standard_name, units, axis) first and common names second. Raises a
     :class:`GridError` naming ``argname`` when none or more than one candidate is found, or when
-    the coordinates are two-dimensional (curvilinear grids are not supported yet).
+    the coordinates are two-dimensional (model grids go through
+    :mod:`sverdrup_kit.physics.model_grid` instead).
     """
     found = {}
     for kind in ("lat", "lon"):
@@ -83,9 +84,10 @@ def find_latlon(obj: xr.DataArray | xr.Dataset, *, argname: str = "data") -> tup
         if obj[name].ndim != 1:
             raise GridError(
                 f"{argname}: expected one-dimensional {kind} coordinates, found '{name}' with "
-                f"dimensions {obj[name].dims}. Curvilinear and tripolar grids (2-D latitude and "
-                f"longitude) are not supported yet. Fix: regrid to a regular latitude-longitude "
-                f"grid first (for example with xesmf or xarray's interp)."
+                f"dimensions {obj[name].dims}. Model grids with 2-D latitude and longitude are "
+                f"handled by open_winds, open_stress, wind_stress_curl, ekman, "
+                f"sverdrup_transport and model_circulation, not by this function. Fix: use one "
+                f"of those, or regrid to a regular latitude-longitude grid first."
             )
         if obj[name].dims[0] != name:
             raise GridError(

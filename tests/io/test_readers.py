@@ -350,16 +350,20 @@ def test_mismatched_grids_of_u_and_v():
         open_winds((u, v))
 
 
-def test_curvilinear_coordinates_not_supported():
+def test_model_grid_coordinates_are_kept():
+    # 2-D coordinates (NEMO-style nav_lat/nav_lon) stay on the model grid: nothing regridded.
     lat2d, lon2d = np.meshgrid(np.linspace(-60, 60, 5), np.linspace(0, 300, 6), indexing="ij")
-    attrs = {"units": "m s-1"}
+    attrs = {"units": "knots"}
     ds = xr.Dataset(
         {"u": (("y", "x"), np.ones((5, 6)), attrs), "v": (("y", "x"), np.ones((5, 6)), attrs)},
         coords={"nav_lat": (("y", "x"), lat2d, {"units": "degrees_north"}),
                 "nav_lon": (("y", "x"), lon2d, {"units": "degrees_east"})},
     )
-    with pytest.raises(GridError, match=r"u \(variable 'u'\).*Curvilinear.*not supported.*Fix"):
-        open_winds(ds)
+    got = open_winds(ds)
+    assert got.u.dims == ("y", "x") and got.nav_lat.shape == (5, 6)
+    # 1 knot = 1852 m / 3600 s (the international nautical mile; common practice).
+    np.testing.assert_allclose(got.u.values, 1852.0 / 3600.0)
+    assert "model grid kept" in got.attrs["normalisation"]
 
 
 def test_latitude_outside_range():

@@ -1,6 +1,6 @@
 """Curl, Sverdrup transport and the model's own circulation on curvilinear model grids.
 
-Grids are built in the tests (tests/model_grids.py): a rotated-pole grid, a displaced-pole
+Grids are built by sverdrup_kit.synthetic_grids: a rotated-pole grid, a displaced-pole
 grid (its north pole on an invented continent) and a tripolar grid. The winds are an invented
 field that is smooth on the whole sphere, with its curl derived in closed form.
 """
@@ -21,7 +21,7 @@ from sverdrup_kit.physics.model_grid import (
     rotate_to_grid,
 )
 
-from ..model_grids import (
+from sverdrup_kit.synthetic_grids import (
     as_field,
     rotated_pole_grid,
     smooth_winds,
@@ -65,7 +65,7 @@ GRIDS = {
 
 @pytest.mark.parametrize("name", sorted(GRIDS))
 def test_curl_matches_the_analytic_curl_within_one_percent(name):
-    # Source: the closed-form curl of the invented field (derived in tests/model_grids.py by
+    # Source: the closed-form curl of the invented field (derived in sverdrup_kit/synthetic_grids.py by
     # Stokes' theorem); the 1% bound is issue 14's target for grids of 1 degree or finer.
     build, poles = GRIDS[name]
     lat, lon, clat, clon = build()

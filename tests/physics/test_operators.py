@@ -224,13 +224,19 @@ def test_bad_input_gets_a_clear_error(make, match):
     assert "Fix" in str(info.value) or "fix" in str(info.value)
 
 
-def test_curvilinear_grids_are_refused_with_the_reason():
+def test_model_grids_go_to_the_model_grid_curl():
+    # 2-D coordinates are no longer refused: wind_stress_curl hands them to the Stokes curl
+    # of sverdrup_kit.physics.model_grid (tested against closed forms in test_model_grid.py).
     y, x = np.mgrid[0:5, 0:6]
     lat2d = xr.DataArray(10.0 + y + 0.1 * x, dims=("y", "x"), attrs={"units": "degrees_north"})
     lon2d = xr.DataArray(100.0 + x + 0.1 * y, dims=("y", "x"), attrs={"units": "degrees_east"})
-    a = xr.DataArray(np.ones((5, 6)), dims=("y", "x"), coords={"nav_lat": lat2d, "nav_lon": lon2d})
-    with pytest.raises(GridError, match="Curvilinear"):
-        wind_stress_curl(a, a)
+    a = xr.DataArray(np.ones((5, 6)), dims=("y", "x"), coords={"nav_lat": lat2d, "nav_lon": lon2d},
+                     attrs={"units": "Pa"})
+    curl = wind_stress_curl(a, a)
+    assert curl.dims == ("y", "x") and curl.attrs["units"] == "N m-3"
+    # A uniform eastward-and-northward stress on a small patch has a curl of order
+    # tau tan(phi) / R only (the metric term; derived): tiny against tau / dx.
+    assert np.nanmax(np.abs(curl.values)) < 1e-7
 
 
 def test_coordinates_keep_their_cf_attributes():

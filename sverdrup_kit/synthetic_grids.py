@@ -1,5 +1,5 @@
-"""Model grids built for the tests: a rotated-pole grid, a displaced-pole grid and a tripolar
-grid, all on the unit sphere scaled to the Earth, with exact corners.
+"""Invented ocean-model grids for demos, tests and benchmarks: rotated-pole, displaced-pole and
+tripolar grids with exact cell corners, and an invented stress field whose curl is known.
 
 Derived here: the rotated and displaced-pole grids are regular grids of a sphere whose pole
 was moved by a rotation; the tripolar grid joins a regular grid south of ``join_lat`` to a
@@ -13,7 +13,9 @@ from __future__ import annotations
 import numpy as np
 import xarray as xr
 
-from sverdrup_kit.geometry.curvilinear import _to_latlon, _unit
+from .geometry.curvilinear import _to_latlon, _unit
+
+__all__ = ["rotated_pole_grid", "tripolar_grid", "as_field", "with_bounds", "smooth_winds"]
 
 
 def _rotation(pole_lat, pole_lon):
@@ -53,20 +55,26 @@ def _cap(lam, u, join_lat, lon0):
     return lat, lon
 
 
-def tripolar_grid(d, *, join_lat=60.0, lon0=80.0, south=-78.0):
-    """Centres and corners of a nominal d-degree tripolar grid (ny, nx), folded at the top."""
+def tripolar_grid(d, *, join_lat=60.0, lon0=80.0, south=-78.0, rows=None):
+    """Centres and corners of a nominal d-degree tripolar grid (ny, nx), folded at the top.
+
+    ``rows``: total number of rows, when the rows south of ``join_lat`` should be closer than
+    ``d`` (models refine their meridional spacing); the cap keeps ``d``.
+    """
     nx = int(round(360 / d))
     lam_c = (np.arange(nx) + 0.5) * np.deg2rad(d)
     lam_e = np.arange(nx + 1) * np.deg2rad(d)
-    lat_s = np.arange(south + d / 2, join_lat, d)
     ncap = int(round((90.0 - join_lat) / d))
+    nsouth = int(round((join_lat - south) / d)) if rows is None else rows - ncap
+    dy = (join_lat - south) / nsouth
+    lat_s = south + dy * (np.arange(nsouth) + 0.5)
     uc = (np.arange(ncap) + 0.5) / ncap
     ue = np.arange(ncap + 1) / ncap
     la_s, lo_s = np.meshgrid(lat_s, np.rad2deg(lam_c) + lon0, indexing="ij")
     la_c, lo_c = _cap(lam_c[None, :], uc[:, None], join_lat, lon0)
     lat = np.concatenate([la_s, la_c])
     lon = np.concatenate([lo_s, lo_c])
-    le_s = np.arange(south, join_lat, d)
+    le_s = south + dy * np.arange(nsouth)
     cla_s, clo_s = np.meshgrid(le_s, np.rad2deg(lam_e) + lon0, indexing="ij")
     cla_c, clo_c = _cap(lam_e[None, :], ue[:, None], join_lat, lon0)
     clat = np.concatenate([cla_s, cla_c])
