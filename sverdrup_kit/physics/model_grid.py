@@ -195,14 +195,14 @@ class BandPlan:
     status: np.ndarray            # (n_basins, nb) int8
     east_lon: np.ndarray          # (n_basins, nb)
     west_lon: np.ndarray          # (n_basins, nb)
-    # One triplet per (cell, valid band it overlaps), sorted band by band from the band's
-    # eastern coast westward: the cell, the flat (basin, band) slot, the cell's share of the
+    # One triplet per (cell, valid band it overlaps), sorted run by run (a band splits into
+    # runs at land), each from its eastern coast westward: the cell, the flat (basin, band) slot, the cell's share of the
     # band (A frac / (R dphi), m) and its fraction of latitude extent in the band.
     cell: np.ndarray
     slot: np.ndarray
     weight: np.ndarray
     share: np.ndarray
-    starts: np.ndarray            # where each slot's run of triplets begins (n_runs + 1,)
+    starts: np.ndarray            # where each run's triplets begin (n_runs + 1,)
     n_cells: int
 
 
@@ -354,8 +354,11 @@ def _plan_bands(ocean, bid, n_basins, grid, *, band_width=None, equatorial_half_
                 gap_factor=1.5) -> BandPlan:
     """Group the ocean cells by basin and latitude band and order each group westward.
 
-    A group's eastern coast is the eastern end of its widest gap of land in longitude; a gap
-    counts as land when it is wider than ``gap_factor`` typical cell widths of the band.
+    A gap in longitude between a band's ocean cells counts as land when it is wider than
+    ``gap_factor`` typical cell widths of the band. Land gaps split the band into runs; each
+    run is integrated westward from its own eastern coast and the band's transport is the sum
+    over its runs (as for a row split by islands on regular grids). A band with no land gap
+    has no eastern coast. The reported coasts are those of the widest run.
     """
     edges = _band_edges(grid, band_width)
     nb = edges.size - 1
@@ -370,6 +373,8 @@ def _plan_bands(ocean, bid, n_basins, grid, *, band_width=None, equatorial_half_
     status = np.full((n_basins, nb), 4, dtype=np.int8)
     east = np.full((n_basins, nb), np.nan)
     west = np.full((n_basins, nb), np.nan)
+    runs = {}  # (basin, band) -> (east lons, extents in degrees, first run id)
+    n_runs = 0
     key = np.where(ok, b * nb + band, -1)
     cells = np.flatnonzero(key >= 0)
     sort = cells[np.lexsort((lon[cells], key[cells]))]
@@ -382,15 +387,20 @@ def _plan_bands(ocean, bid, n_basins, grid, *, band_width=None, equatorial_half_
             continue
         lons = lon[part]
         gaps = np.diff(np.concatenate([lons, [lons[0] + 360.0]]))
-        g = int(np.argmax(gaps))
         width = typical / max(np.cos(np.deg2rad(centres[j])), 1e-3)
-        if gaps[g] <= gap_factor * width:
+        land = np.flatnonzero(gaps > gap_factor * width)
+        if land.size == 0:
             status[k, j] = 2
             continue
-        # The eastern coast lies at the western side of the widest gap of land.
         status[k, j] = 0
-        east[k, j] = lons[g] + 0.5 * width
-        west[k, j] = lons[(g + 1) % lons.size] - 0.5 * width
+        # Each run ends in the east at the western side of a land gap.
+        e = lons[land] + 0.5 * width
+        w = lons[(np.roll(land, 1) + 1) % lons.size] - 0.5 * width
+        extent = np.mod(e - w, 360.0)
+        widest = int(np.argmax(extent))
+        east[k, j], west[k, j] = e[widest], w[widest]
+        runs[(k, j)] = (e, extent, n_runs)
+        n_runs += e.size
 
     # A cell adds to every valid band its latitude extent overlaps, by the share of the
     # extent in that band (cells straddle band edges on rotated grids).
@@ -409,16 +419,31 @@ def _plan_bands(ocean, bid, n_basins, grid, *, band_width=None, equatorial_half_
         frac = (np.minimum(hi[c], edges[j + 1]) - np.maximum(lo[c], edges[j])) / span[c]
         keep = (status[b[c], j] == 0) & (frac > 0)
         c, j, frac = c[keep], j[keep], frac[keep]
-        dist = np.mod(east[b[c], j] - lon[c], 360.0)
         area = grid.cell_area.ravel()[c]
-        parts.append((c, b[c] * nb + j, frac * area / (grid.radius * dphi[j]), frac, dist))
+        parts.append((c, b[c] * nb + j, frac * area / (grid.radius * dphi[j]), frac))
     if parts:
-        c, sl, w, fr, dist = (np.concatenate(x) for x in zip(*parts))
+        c, sl, w, fr = (np.concatenate(x) for x in zip(*parts))
     else:
-        c, sl, w, fr, dist = (np.zeros(0, dt) for dt in (int, int, float, float, float))
-    o = np.lexsort((dist, sl))
-    c, sl, w, fr = c[o], sl[o], w[o], fr[o]
-    starts = np.concatenate([[0], np.flatnonzero(np.diff(sl)) + 1, [sl.size]])
+        c, sl, w, fr = (np.zeros(0, dt) for dt in (int, int, float, float))
+    # Each triplet joins the run of its band whose span holds it (the nearest run to its east
+    # when it sits over the band's land), and is ordered by its distance west of that run's
+    # eastern coast.
+    run = np.empty(c.size, dtype=np.int64)
+    dist = np.empty(c.size)
+    order = np.argsort(sl, kind="stable")
+    seg = np.concatenate([[0], np.flatnonzero(np.diff(sl[order])) + 1, [order.size]])
+    for a, z in zip(seg[:-1], seg[1:]):
+        t = order[a:z]
+        k, j = divmod(int(sl[t[0]]), nb)
+        e, extent, r0 = runs[(k, j)]
+        d = np.mod(e[None, :] - lon[c[t]][:, None], 360.0)
+        inside = d <= extent[None, :] + 1e-9
+        pick = np.where(inside.any(axis=1), np.argmax(inside, axis=1), np.argmin(d, axis=1))
+        run[t] = r0 + pick
+        dist[t] = d[np.arange(t.size), pick]
+    o = np.lexsort((dist, run))
+    c, sl, w, fr, run = c[o], sl[o], w[o], fr[o], run[o]
+    starts = np.concatenate([[0], np.flatnonzero(np.diff(run)) + 1, [run.size]])
     return BandPlan(centres, edges, status, east, west, c.astype(np.int64),
                     sl.astype(np.int64), w, fr, starts.astype(np.int64), lat.size)
 

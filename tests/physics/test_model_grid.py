@@ -347,3 +347,30 @@ def test_ekman_pumping_on_a_regular_grid_as_model_grid():
                                atol=5e-3 * scale)
     np.testing.assert_allclose(cur.ekman_northward_transport.values[inner],
                                reg.ekman_northward_transport.values[inner], rtol=1e-12)
+
+
+def test_a_band_split_by_continents_integrates_each_run_from_its_own_coast():
+    # Two invented continents in one connected ocean: each band between them holds two runs,
+    # and the band's transport is their sum. Source: the toolkit's regular-grid integral with
+    # the two oceans given as basins of their own, added up.
+    lat = np.arange(-79.0, 80.0, 2.0)
+    lon = np.arange(1.0, 360.0, 2.0)
+    la, lo = np.meshgrid(lat, lon, indexing="ij")
+    land = (((lo > 150) & (lo < 176)) | ((lo > 280) & (lo < 300))) & (la > -40) & (la < 70)
+    tau = np.where(land, np.nan, -0.1 * np.cos(np.deg2rad(3.0 * la)))
+    coords = {"lat": lat, "lon": lon}
+    tx = xr.DataArray(tau, coords=coords, dims=("lat", "lon"), attrs={"units": "Pa"})
+    oceans = {"narrow": [(176, -38), (280, -38), (280, 68), (176, 68)],
+              "wide": [(-60, -38), (150, -38), (150, 68), (-60, 68)]}
+    reg = sk.sverdrup_transport(tx, 0 * tx, basins=oceans)
+    total = reg.interior_transport.sum("basin")
+    cur = sk.sverdrup_transport(as_field(tau, la, lo), as_field(0 * tau, la, lo))
+    assert cur.sizes["basin"] == 1
+    got = cur.interior_transport.isel(basin=0)
+    for b in (-29.0, -19.0, 21.0, 31.0, 41.0):
+        assert float(got.sel(lat=b)) == pytest.approx(float(total.sel(lat=b)), rel=0.01)
+    # Each run starts at zero on its own eastern coast: just west of each continent.
+    psi = cur.sverdrup_streamfunction.isel(y=int(np.argmin(np.abs(lat - 31))))
+    for coast in (149.0, 279.0):
+        edge = float(psi.isel(x=int(np.argmin(np.abs(lon - coast)))))
+        assert abs(edge) < 0.05 * float(np.abs(psi).max())
