@@ -374,3 +374,29 @@ def test_a_band_split_by_continents_integrates_each_run_from_its_own_coast():
     for coast in (149.0, 279.0):
         edge = float(psi.isel(x=int(np.argmin(np.abs(lon - coast)))))
         assert abs(edge) < 0.05 * float(np.abs(psi).max())
+
+
+@pytest.mark.realdata
+def test_earth_basins_reach_the_model_grid(etopo60):
+    # basins="earth" on a model grid: the regular-grid Earth basins carried to the model's
+    # cells. Geography (common practice): at 30N the Atlantic with the Gulf of Mexico lies
+    # between about 98W and 10W,
+    # the Pacific between about 120E and 115W.
+    relief = xr.open_dataset(etopo60)["ROSE"].load()
+    lat, lon, _, _ = rotated_pole_grid(2.0, pole_lat=50.0, pole_lon=160.0)
+    rl = relief.rename({relief.dims[0]: "lat", relief.dims[1]: "lon"})
+    lon0 = float(rl.lon.min())
+    at = dict(lat=xr.DataArray(lat, dims=("y", "x")),
+              lon=xr.DataArray(lon0 + np.mod(lon - lon0, 360.0), dims=("y", "x")))
+    ocean = (rl.sel(**at, method="nearest") < 0).values
+    tx = as_field(np.where(ocean, -0.05, np.nan), lat, lon)
+    ds = sk.sverdrup_transport(tx, 0 * tx, basins="earth", ocean_mask=ocean)
+    names = list(ds.basin.values)
+    assert {"atlantic", "pacific", "indian"} <= set(names)
+    bid = ds.basin_id.values
+    row = np.abs(lat - 30) < 1.5
+    lo = np.mod(lon, 360)
+    atl = row & (bid == names.index("atlantic"))
+    pac = row & (bid == names.index("pacific"))
+    assert np.all((lo[atl] > 260) & (lo[atl] < 355))
+    assert np.all((lo[pac] > 115) & (lo[pac] < 250))
