@@ -22,7 +22,7 @@ def synthetic_curl(step: float) -> xr.DataArray:
     included, is the one shipped with the toolkit.
     """
     world = load_world()
-    stress = wind_stress(world.u, world.v, speed=world.wind_speed).mean("time")
+    stress = wind_stress(world.u, world.v, wind_speed=world.wind_speed).mean("time")
     lat = np.arange(-90 + step / 2, 90, step)
     lon = np.arange(step / 2, 360, step)
     fine = stress.interp(lat=lat, lon=lon, method="nearest",

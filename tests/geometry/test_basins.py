@@ -107,7 +107,7 @@ def test_row_of_water_and_islands_all_round_is_circular():
     assert len(groups) == 1 and groups[0].circular
 
 
-def test_basin_mask_names_and_round_trip():
+def test_basin_ids_names_and_round_trip():
     lat, lon = grid()
     ocean = box(lat, lon, 0, 60, -40, 60) | box(lat, lon, 150, 230, -40, 60)
     b = basin_ids(mask_da(ocean, lat, lon))

@@ -51,7 +51,7 @@ def _runs_containing(row_ocean, j):
 
 
 def fake_sverdrup(world):
-    """A Dataset of the agreed sverdrup() schema, computed by hand on the synthetic world."""
+    """A Dataset of the agreed sverdrup_transport() schema, computed by hand on the synthetic world."""
     speed = world.wind_speed.astype("f8")
     taux = (RHO_AIR * CD * speed * world.u.astype("f8")).assign_attrs(units="Pa")
     tauy = (RHO_AIR * CD * speed * world.v.astype("f8")).assign_attrs(units="Pa")
