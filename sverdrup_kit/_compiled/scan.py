@@ -151,3 +151,75 @@ def sign_changes(t, lat, valid, *, max_gyre_boundaries):
         return y[..., :max_gyre_boundaries], count
     pad = np.full(y.shape[:-1] + (max_gyre_boundaries - k,), np.nan)
     return np.concatenate([y, pad], axis=-1), count
+
+
+def coverage(obs, cells, starts, slot, n_slots):
+    """Mean of ``obs`` (..., ny, nx) over the cells of each slot; NaN for slots with none.
+
+    ``cells`` (flat indices) are sorted by slot; ``starts`` gives each slot's first cell and
+    ``slot`` its number (0..n_slots-1).
+    """
+    obs = np.asarray(obs, dtype=np.float64)
+    lead = obs.shape[:-2]
+    out = np.full(lead + (n_slots,), np.nan)
+    if starts.size:
+        flat = obs.reshape(lead + (-1,))[..., cells]
+        counts = np.diff(np.append(starts, cells.size))
+        out[..., slot] = np.add.reduceat(flat, starts, axis=-1) / counts
+    return out
+
+
+def gyre_boundaries(t, valid, *, lat, max_gyre_boundaries, threshold):
+    """Sign changes of ``t`` that reach at least ``threshold`` on both sides.
+
+    Parameters
+    ----------
+    t : ndarray (..., nb, ny)
+        Transport by basin and row, NaN where unknown.
+    valid : ndarray of bool (..., nb, ny)
+        Rows that may be used; a crossing is never bridged across a row that is not valid.
+    lat : ndarray (ny,)
+        Ascending row latitudes.
+    max_gyre_boundaries : int
+        Length of the output's last axis.
+    threshold : float
+        Rows with ``|t| < threshold`` are passed over: a boundary lies between two valid rows
+        of opposite sign, each at least ``threshold`` in size, with only valid rows between
+        them. Its latitude is the middle one of the raw sign changes between them (linear
+        interpolation between neighbouring rows). ``threshold=0`` gives every sign change.
+
+    Returns
+    -------
+    crossings : ndarray (..., nb, max_gyre_boundaries)
+        South to north, NaN-padded.
+    count : ndarray (..., nb), int64
+    """
+    t = np.asarray(t, dtype=np.float64)
+    valid = np.broadcast_to(np.asarray(valid, dtype=bool), t.shape)
+    shape = t.shape[:-1]
+    ny = t.shape[-1]
+    tt = t.reshape(-1, ny)
+    vv = valid.reshape(-1, ny)
+    out = np.full((tt.shape[0], max_gyre_boundaries), np.nan)
+    count = np.zeros(tt.shape[0], dtype=np.int64)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        a, b = tt[:, :-1], tt[:, 1:]
+        raw = vv[:, :-1] & vv[:, 1:] & (a * b < 0)
+        y_raw = lat[:-1] + a / (a - b) * np.diff(lat)
+    for s in range(tt.shape[0]):
+        v = vv[s] & np.isfinite(tt[s])
+        seg = np.cumsum(~v)
+        keep = np.flatnonzero(v & (np.abs(tt[s]) >= threshold))
+        if keep.size < 2:
+            continue
+        p, q = keep[:-1], keep[1:]
+        hit = (seg[p] == seg[q]) & (np.sign(tt[s, p]) != np.sign(tt[s, q]))
+        found = []
+        for i, k in zip(p[hit], q[hit]):
+            r = i + np.flatnonzero(raw[s, i:k])
+            if r.size:
+                found.append(y_raw[s, r[(r.size - 1) // 2]])
+        count[s] = len(found)
+        n = min(len(found), max_gyre_boundaries)
+        out[s, :n] = found[:n]
+    return out.reshape(shape + (max_gyre_boundaries,)), count.reshape(shape)

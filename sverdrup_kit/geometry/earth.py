@@ -141,6 +141,7 @@ EARTH_STRAITS = {
 COUNTED, EXCLUDED = "counted", "excluded"
 
 #: Marginal seas and sub-basins: name -> dict(basin, policy, polygon [(lon, lat), ...], why).
+#: Polygon longitudes increase eastward without jumping at 0/360 (359 is followed by 361).
 #: The Caribbean and the Gulf of Mexico are excluded by default: they carry the western
 #: boundary current system upstream of the Florida Current (Caribbean Current, Loop Current),
 #: so the interior ends on the Antilles arc, the Bahamas and Florida, as in comparisons of the
@@ -165,7 +166,7 @@ EARTH_SEAS = {
     ),
     "north_sea": dict(
         basin="atlantic", policy=COUNTED,
-        polygon=[(357.0, 51.0), (9.0, 51.0), (9.0, 58.0), (5.0, 62.0), (357.0, 62.0)],
+        polygon=[(357.0, 51.0), (369.0, 51.0), (369.0, 58.0), (365.0, 62.0), (357.0, 62.0)],
         why="shelf sea open to the Norwegian Sea; crossed with Great Britain by rows at "
         "51-60N",
     ),
@@ -179,8 +180,8 @@ EARTH_SEAS = {
     ),
     "gulf_of_mexico": dict(
         basin="atlantic", policy=EXCLUDED,
-        polygon=[(260.0, 17.5), (275.5, 21.6), (278.0, 22.0), (279.5, 23.5), (279.5, 25.0),
-                 (279.0, 31.0), (260.0, 31.0)],
+        polygon=[(260.0, 17.5), (275.5, 21.6), (278.0, 22.0), (279.5, 23.3), (279.8, 24.5),
+                 (278.0, 25.5), (277.3, 28.0), (276.5, 29.5), (275.0, 31.0), (260.0, 31.0)],
         why="carries the Loop Current, upstream of the Florida Current",
     ),
     "hudson_bay": dict(
@@ -196,7 +197,8 @@ EARTH_SEAS = {
     ),
     "mediterranean_black_sea": dict(
         basin="atlantic", policy=EXCLUDED,
-        polygon=[(354.5, 30.0), (42.0, 30.0), (42.0, 48.0), (354.5, 48.0)],
+        polygon=[(354.5, 30.0), (402.0, 30.0), (402.0, 48.0), (361.0, 48.0), (361.0, 40.5),
+                 (357.0, 38.5), (354.5, 37.0)],
         why="enclosed behind the Strait of Gibraltar",
     ),
     "red_sea": dict(
