@@ -153,17 +153,20 @@ def sign_changes(t, lat, valid, *, max_gyre_boundaries):
     return np.concatenate([y, pad], axis=-1), count
 
 
-def coverage(obs, cells, starts, slot, n_slots):
-    """Mean of ``obs`` (..., ny, nx) over the cells of each slot; NaN for slots with none.
+def coverage(tx, ty, cells, starts, slot, n_slots):
+    """Share of the cells of each slot where both ``tx`` and ``ty`` (..., ny, nx) are finite;
+    NaN for slots with no cells.
 
     ``cells`` (flat indices) are sorted by slot; ``starts`` gives each slot's first cell and
     ``slot`` its number (0..n_slots-1).
     """
-    obs = np.asarray(obs, dtype=np.float64)
-    lead = obs.shape[:-2]
+    tx = np.asarray(tx)
+    lead = tx.shape[:-2]
     out = np.full(lead + (n_slots,), np.nan)
     if starts.size:
-        flat = obs.reshape(lead + (-1,))[..., cells]
+        flat = (np.isfinite(tx.reshape(lead + (-1,))[..., cells])
+                & np.isfinite(np.asarray(ty).reshape(lead + (-1,))[..., cells])
+                ).astype(np.float64)
         counts = np.diff(np.append(starts, cells.size))
         out[..., slot] = np.add.reduceat(flat, starts, axis=-1) / counts
     return out

@@ -121,10 +121,11 @@ def _split_at_straits(land, labels, n, grid):
     sub, m = label_cells(touched, periodic=grid.periodic, cut_east=cut_e, cut_north=cut_n)
     # Keep the untouched bodies' numbers, give the pieces new ones, then renumber densely.
     out = np.where(touched, n + sub, labels)
-    uniq, inv = np.unique(out[land], return_inverse=True)
-    res = np.full_like(labels, -1)
-    res[land] = inv
-    return res, int(uniq.size)
+    present = np.zeros(n + m, dtype=bool)
+    present[out[land]] = True
+    dense = np.cumsum(present) - 1
+    res = np.where(land, dense[np.maximum(out, 0)], -1)
+    return res, int(present.sum())
 
 
 def _resolve_key(key, bodies_names, labels, lat, lon, argname):

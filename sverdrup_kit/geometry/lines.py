@@ -7,9 +7,8 @@ divided along the lines between the Earth's oceans). Longitude wraps when the gr
 from __future__ import annotations
 
 import numpy as np
-from scipy.sparse import coo_matrix
-from scipy.sparse.csgraph import connected_components
 
+from .._compiled.dispatch import label_links
 from .grid import SphericalGrid
 
 
@@ -29,46 +28,14 @@ def label_cells(mask, *, periodic, diagonal=False, cut_east=None, cut_north=None
     Returns
     -------
     labels : ndarray of int (ny, nx)
-        0..n-1 on True cells, -1 elsewhere.
+        0..n-1 on True cells in order of first appearance row by row, -1 elsewhere.
     n : int
     """
     mask = np.asarray(mask, dtype=bool)
-    ny, nx = mask.shape
-    ids = np.arange(ny * nx).reshape(ny, nx)
-    rows, cols = [], []
-
-    def link(a_sl, b_sl, keep):
-        ok = mask[a_sl] & mask[b_sl] & keep
-        rows.append(ids[a_sl][ok])
-        cols.append(ids[b_sl][ok])
-
-    full = np.ones((ny, nx), dtype=bool)
-    ce = ~cut_east if cut_east is not None else full
-    cn = ~cut_north if cut_north is not None else full
-    link((slice(None), slice(0, nx - 1)), (slice(None), slice(1, nx)), ce[:, : nx - 1])
-    if periodic:
-        link((slice(None), slice(nx - 1, nx)), (slice(None), slice(0, 1)), ce[:, nx - 1 :])
-    link((slice(0, ny - 1), slice(None)), (slice(1, ny), slice(None)), cn[: ny - 1])
-    if diagonal:
-        shifted = np.roll(mask, -1, axis=1)
-        sid = np.roll(ids, -1, axis=1)
-        for dj in (1, -1):
-            a = slice(0, ny - 1) if dj == 1 else slice(1, ny)
-            b = slice(1, ny) if dj == 1 else slice(0, ny - 1)
-            ok = mask[a] & shifted[b]
-            if not periodic:
-                ok[:, -1] = False
-            rows.append(ids[a][ok])
-            cols.append(sid[b][ok])
-    r = np.concatenate(rows)
-    c = np.concatenate(cols)
-    graph = coo_matrix((np.ones(r.size, dtype=np.int8), (r, c)), shape=(ny * nx, ny * nx))
-    _, comp = connected_components(graph, directed=False)
-    comp = comp.reshape(ny, nx)
-    labels = np.full((ny, nx), -1, dtype=np.int64)
-    uniq, inv = np.unique(comp[mask], return_inverse=True)
-    labels[mask] = inv
-    return labels, int(uniq.size)
+    none = np.zeros(mask.shape, dtype=bool)
+    return label_links(mask, none if cut_east is None else cut_east,
+                       none if cut_north is None else cut_north, periodic=periodic,
+                       diagonal=diagonal)
 
 
 def line_cuts(grid: SphericalGrid, lines):

@@ -14,10 +14,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .land import CONTINENT, LARGE_ISLAND
-
-#: Kinds of the cell beyond a group's end.
-END_COAST, END_WATER, END_EDGE = 0, 1, 2
+from .._compiled.dispatch import row_groups
+from .._compiled.geometry import END_COAST, END_EDGE, END_WATER  # noqa: F401
+from .land import CONTINENT
 
 
 @dataclass
@@ -69,86 +68,12 @@ def find_groups(member, cls, land_labels, dx, *, periodic, coast_link=None) -> G
 
     Two neighbouring runs join when every cell between them is land of one large island and
     no link between them is a coast (``coast_link[j, i]``: the link from (j, i) to (j, i+1)
-    stands for a coast). A periodic row of members and large islands only is circular.
+    stands for a coast). A periodic row of members and large islands only is circular. See
+    :func:`sverdrup_kit._compiled.geometry.row_groups_numpy`.
     """
     member = np.asarray(member, dtype=bool)
-    ny, nx = member.shape
-    large = cls == LARGE_ISLAND
-    hard = ~member & ~large
-    if periodic:
-        has_hard = hard.any(axis=1)
-        shift = np.where(has_hard, np.argmax(hard, axis=1), 0).astype(np.int64)
-        idx = (np.arange(nx)[None, :] + shift[:, None]) % nx
-    else:
-        has_hard = np.ones(ny, dtype=bool)
-        shift = np.zeros(ny, dtype=np.int64)
-        idx = np.broadcast_to(np.arange(nx), (ny, nx))
-    rows = np.arange(ny)[:, None]
-    m = member[rows, idx]
-    lab = land_labels[rows, idx]
-    lg = large[rows, idx]
-    ext = cls[rows, idx] >= LARGE_ISLAND
-    link = coast_link[rows, idx] if coast_link is not None else np.zeros((ny, nx), bool)
-    width_p = _prefix(np.where(m, dx[rows, idx], 0.0))
-
-    pad = np.zeros((ny, 1), dtype=np.int8)
-    d = np.diff(np.concatenate([pad, m.astype(np.int8), pad], axis=1), axis=1)
-    sj, sk = np.nonzero(d == 1)
-    ej, ek = np.nonzero(d == -1)
-    # Rows whose members and large islands fill the whole circle.
-    circ_row = periodic & ~has_hard & m.any(axis=1)
-    n_runs = sj.size
-    if n_runs == 0:
-        e = np.zeros(0, np.int64)
-        return Groups(shift, e, e, e, e, e, e, e, np.zeros(0), e, e, np.zeros(0, bool))
-
-    # Join run r to run r-1 across one large island with no coast link in between.
-    nonlarge_p = _prefix((~lg).astype(np.int8))
-    change = np.zeros((ny, nx), dtype=np.int8)
-    change[:, 1:] = lab[:, 1:] != lab[:, :-1]
-    change_p = _prefix(change)
-    link_p = _prefix(link.astype(np.int8))
-    same_row = np.zeros(n_runs, dtype=bool)
-    same_row[1:] = sj[1:] == sj[:-1]
-    joined = np.zeros(n_runs, dtype=bool)
-    r = np.flatnonzero(same_row)
-    j, a, b = sj[r], ek[r - 1], sk[r]  # gap a..b-1 in row j
-    joined[r] = (
-        (nonlarge_p[j, b] - nonlarge_p[j, a] == 0)
-        & (change_p[j, b] - change_p[j, a + 1] == 0)
-        & (link_p[j, b] - link_p[j, a - 1] == 0)
-    )
-    joined |= circ_row[sj] & same_row
-    run_group = np.cumsum(~joined) - 1
-    ng = int(run_group[-1]) + 1
-    first = np.flatnonzero(~joined)
-    last = np.append(first[1:] - 1, n_runs - 1)
-    g_row = sj[first]
-    k0, k1 = sk[first], ek[last]
-    width = width_p[g_row, k1] - width_p[g_row, k0]
-    circular = circ_row[g_row]
-
-    def end_kind(k_beyond, k_link):
-        """Kind of the cell at rotated column k_beyond, reached over the link k_link."""
-        out = np.full(ng, END_WATER, dtype=np.int8)
-        inside = (k_beyond >= 0) & (k_beyond < nx)
-        if not periodic:
-            out[~inside] = END_EDGE
-        kb = np.clip(k_beyond, 0, nx - 1) if not periodic else k_beyond % nx
-        land = ext[g_row, kb]
-        lk = np.clip(k_link, 0, nx - 1) if not periodic else k_link % nx
-        coast = (land | link[g_row, lk]) & (inside if not periodic else True)
-        out[coast] = END_COAST
-        return out
-
-    east = end_kind(k1, k1 - 1)
-    west = end_kind(k0 - 1, k0 - 1)
-    east[circular] = END_WATER
-    west[circular] = END_WATER
-    return Groups(shift=shift, run_row=sj.astype(np.int64), run_k0=sk.astype(np.int64),
-                  run_k1=ek.astype(np.int64), run_group=run_group.astype(np.int64),
-                  row=g_row.astype(np.int64), k0=k0.astype(np.int64), k1=k1.astype(np.int64),
-                  width=width, east=east, west=west, circular=circular)
+    link = np.zeros(member.shape, bool) if coast_link is None else coast_link
+    return Groups(*row_groups(member, cls, land_labels, dx, periodic=periodic, coast_link=link))
 
 
 def per_row_argmax(row, value, ny):
@@ -315,7 +240,6 @@ def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km
     periodic = grid.periodic
     edges = grid.lon_edges
     dx = grid.dx
-    dlon = np.diff(edges)
     excluded = np.zeros((ny, nx), bool) if excluded is None else excluded
     counted_sea = np.zeros((ny, nx), bool) if counted_sea is None else counted_sea
     sea_id = np.full((ny, nx), -1, np.int64) if sea_id is None else sea_id
@@ -349,7 +273,6 @@ def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km
     # Per run: its cells (flat, east to west, concatenated), length, row and slot (-1: none).
     all_cells, all_lens, all_rows, run_slot = [], [], [], []
     count_cells, count_slot = [], []
-    rows_idx = np.arange(ny)[:, None]
 
     for b in range(n_basins):
         inb = bid == b
@@ -394,10 +317,8 @@ def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km
         st[has & (wsum < min_width_km * 1e3)] = 3
         st[has & (G.west[mg] != END_COAST)] = 5
         # Half the globe and whole continents inside the span.
-        dlon_rot = dlon[(np.arange(nx)[None, :] + G.shift[:, None]) % nx]
-        dp = _prefix(dlon_rot)
-        span = np.where(has, dp[np.arange(ny), np.clip(kmax, 0, nx)]
-                        - dp[np.arange(ny), np.clip(kmin, 0, nx)], 0.0)
+        span = np.where(has, _face(edges, np.clip(kmax, 0, nx) + G.shift, periodic)
+                        - _face(edges, np.clip(kmin, 0, nx) + G.shift, periodic), 0.0)
         inside = passes_continent(arcs, kmin, kmax, G.shift, has, nx)
         ok_far = (st == 0) | (st == 3)
         st[has & ok_far & inside] = 7

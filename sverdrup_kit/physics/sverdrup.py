@@ -60,11 +60,17 @@ def _fill_kernel(tx, ty, *, target, keep_missing, periodic):
     """Fill stress gaps inside ``target`` (both components missing where either is)."""
     tx = np.asarray(tx, dtype=np.float64)
     ty = np.asarray(ty, dtype=np.float64)
-    missing = np.isnan(tx) | np.isnan(ty)
-    tx = np.where(missing, np.nan, tx)
-    ty = np.where(missing, np.nan, ty)
+    nx_, ny_ = np.isnan(tx), np.isnan(ty)
+    if not np.array_equal(nx_, ny_):
+        missing = nx_ | ny_
+        tx = np.where(missing, np.nan, tx)
+        ty = np.where(missing, np.nan, ty)
+    else:
+        missing = nx_
     fx = fill_from_neighbours(tx, target=target, periodic=periodic)
     fy = fill_from_neighbours(ty, target=target, periodic=periodic)
+    if keep_missing is None:
+        return fx, fy
     stay = missing & keep_missing
     return np.where(stay, np.nan, fx), np.where(stay, np.nan, fy)
 
@@ -347,17 +353,19 @@ def sverdrup_transport(
     pole[-1] = grid.lat_edges[-1] >= 90.0 - 1e-9
 
     # Per time step: fill, curl, V, scan.
-    keep_missing = (cls == OCEAN) if not fill_gaps else np.zeros_like(water)
+    keep_missing = (cls == OCEAN) if not fill_gaps else None
     fx, fy = apply_grid_kernel(
         _fill_kernel, tx, ty, dims=(lat, lon), n_out=2,
         kwargs=dict(target=water, keep_missing=keep_missing, periodic=grid.periodic),
     )
     curl = curl_on_sphere(fx, fy, grid=grid, names=("taux", "tauy"))
-    # Cells touching the pole: 1/cos(phi) makes their curl spikes, not data.
-    curl = curl.where(xr.DataArray(~pole, dims=(lat,), coords={lat: tx[lat]}))
-    beta = xr.DataArray(grid.beta, dims=(lat,), coords={lat: tx[lat]})
-    not_band = xr.DataArray(~band, dims=(lat,), coords={lat: tx[lat]})
-    v = (curl / (rho0 * beta)).where(not_band)
+    # Cells touching the pole: 1/cos(phi) makes their curl spikes, not data. One multiply
+    # each (1 or NaN per row) masks the pole rows and, for V, the equatorial band.
+    if pole.any():
+        curl = curl * xr.DataArray(np.where(pole, np.nan, 1.0), dims=(lat,),
+                                   coords={lat: tx[lat]})
+    inv_rb = np.where(band | pole, np.nan, 1.0 / (rho0 * grid.beta))
+    v = curl * xr.DataArray(inv_rb, dims=(lat,), coords={lat: tx[lat]})
     psi, transport = xr.apply_ufunc(
         _scan_kernel,
         whole_fields(v, (lat, lon)),
@@ -375,10 +383,9 @@ def sverdrup_transport(
     lead = [d for d in order if d not in (lat, lon)]
     transport = transport.transpose(*lead, "basin", lat)
     # Coverage: the share of each row's counted cells whose stress was observed.
-    obs = (tx.notnull() & ty.notnull()).astype(np.float64)
     observed = xr.apply_ufunc(
-        _coverage_kernel, whole_fields(obs, (lat, lon)),
-        input_core_dims=[[lat, lon]], output_core_dims=[["basin", lat]],
+        _coverage_kernel, whole_fields(tx, (lat, lon)), whole_fields(ty, (lat, lon)),
+        input_core_dims=[[lat, lon], [lat, lon]], output_core_dims=[["basin", lat]],
         dask="parallelized", output_dtypes=[np.float64],
         dask_gufunc_kwargs={"output_sizes": {"basin": nb}},
         kwargs=dict(cells=plan.count_cells, starts=plan.count_starts, slot=plan.count_slot,
@@ -430,9 +437,9 @@ def _check_geometry(geometry, grid):
         )
 
 
-def _coverage_kernel(obs, *, cells, starts, slot, n_basins):
-    ny = obs.shape[-2]
-    c = coverage(obs, cells, starts, slot, n_basins * ny)
+def _coverage_kernel(tx, ty, *, cells, starts, slot, n_basins):
+    ny = tx.shape[-2]
+    c = coverage(tx, ty, cells, starts, slot, n_basins * ny)
     return c.reshape(c.shape[:-1] + (n_basins, ny))
 
 
