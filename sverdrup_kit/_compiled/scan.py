@@ -114,45 +114,6 @@ def sum_groups(totals, group_runs, group_starts, group_slot, n_slots):
     return out
 
 
-def sign_changes(t, lat, valid, *, max_gyre_boundaries):
-    """Latitudes where ``t`` changes sign between neighbouring valid rows.
-
-    Parameters
-    ----------
-    t : ndarray (..., nb, ny)
-        Transport by basin and row, NaN where unknown.
-    lat : ndarray (ny,)
-        Ascending row latitudes.
-    valid : ndarray of bool (nb, ny)
-        Rows that may be used; a crossing needs two neighbouring valid rows.
-    max_gyre_boundaries : int
-        Length of the output's last axis.
-
-    Returns
-    -------
-    crossings : ndarray (..., nb, max_gyre_boundaries)
-        Latitudes by linear interpolation between the two rows, south to north, NaN-padded.
-    count : ndarray (..., nb), int64
-        Number of sign changes found (may exceed ``max_gyre_boundaries``).
-    """
-    t = np.asarray(t, dtype=np.float64)
-    a, b = t[..., :-1], t[..., 1:]
-    pair = valid[:, :-1] & valid[:, 1:]
-    with np.errstate(invalid="ignore"):
-        hit = pair & (a * b < 0)
-        frac = a / (a - b)
-    y = lat[:-1] + frac * np.diff(lat)
-    y = np.where(hit, y, np.nan)
-    count = hit.sum(axis=-1).astype(np.int64)
-    # Sorting puts NaN last, so the found latitudes come first in ascending order.
-    y = np.sort(y, axis=-1)
-    k = y.shape[-1]
-    if k >= max_gyre_boundaries:
-        return y[..., :max_gyre_boundaries], count
-    pad = np.full(y.shape[:-1] + (max_gyre_boundaries - k,), np.nan)
-    return np.concatenate([y, pad], axis=-1), count
-
-
 def coverage(tx, ty, cells, starts, slot, n_slots):
     """Share of the cells of each slot where both ``tx`` and ``ty`` (..., ny, nx) are finite;
     NaN for slots with no cells.
@@ -209,6 +170,12 @@ def gyre_boundaries(t, valid, *, lat, max_gyre_boundaries, threshold):
         a, b = tt[:, :-1], tt[:, 1:]
         raw = vv[:, :-1] & vv[:, 1:] & (a * b < 0)
         y_raw = lat[:-1] + a / (a - b) * np.diff(lat)
+    if threshold <= 0:
+        # Every sign change: sorting puts NaN last, found latitudes first in ascending order.
+        y = np.sort(np.where(raw, y_raw, np.nan), axis=-1)[:, :max_gyre_boundaries]
+        out[:, : y.shape[1]] = y
+        return (out.reshape(shape + (max_gyre_boundaries,)),
+                raw.sum(axis=-1).astype(np.int64).reshape(shape))
     for s in range(tt.shape[0]):
         v = vv[s] & np.isfinite(tt[s])
         seg = np.cumsum(~v)

@@ -106,8 +106,9 @@ def _key(ocean, grid, basins, options, depth):
     except TypeError:
         # DataArray basins and other objects are not cached: their content is the key.
         return None
+    names = (grid.layout.lat_name, grid.layout.lon_name) if grid.layout is not None else None
     return (_digest(ocean, grid.lat, grid.lon, *(() if depth is None else (depth,))),
-            grid.periodic, grid.radius, grid.omega, b, opts)
+            grid.periodic, grid.radius, grid.omega, names, b, opts)
 
 
 def build_geometry(ocean, grid: SphericalGrid, *, basins=None, layout=None, ref=None,

@@ -12,7 +12,7 @@ import numpy as np
 import xarray as xr
 
 from .. import constants
-from .._apply import apply_grid_kernel, whole_fields
+from .._apply import _bare, apply_grid_kernel, whole_fields
 from .._compiled.dispatch import fill_from_neighbours, westward_scan
 from .._compiled.scan import coverage, gyre_boundaries, sum_groups
 from ..geometry.basins import (
@@ -75,12 +75,25 @@ def _fill_kernel(tx, ty, *, target, keep_missing, periodic):
     return np.where(stay, np.nan, fx), np.where(stay, np.nan, fy)
 
 
-def _scan_kernel(v, *, dx, cells, run_starts, group_runs, group_starts, group_slot, n_basins):
-    psi, totals = westward_scan(v, dx, cells, run_starts)
+def _integral_kernel(curl, tx, ty, *, pole_factor, inv_rb, dx, plan, n_basins):
+    """Curl with pole rows masked, V, the westward scan, and each row's observed coverage."""
+    curl = np.asarray(curl, dtype=np.float64) * pole_factor[:, None]
+    v = curl * inv_rb[:, None]
+    psi, totals = westward_scan(v, dx, plan.cells, plan.run_starts)
     ny = v.shape[-2]
-    t = sum_groups(totals, group_runs, group_starts, group_slot, n_basins * ny)
+    t = sum_groups(totals, plan.group_runs, plan.group_starts, plan.group_slot, n_basins * ny)
     t = t.reshape(t.shape[:-1] + (n_basins, ny))
-    return psi / constants.SVERDRUP_IN_M3_S, t / constants.SVERDRUP_IN_M3_S
+    obs = coverage(tx, ty, plan.count_cells, plan.count_starts, plan.count_slot, n_basins * ny)
+    obs = obs.reshape(obs.shape[:-1] + (n_basins, ny))
+    sv = constants.SVERDRUP_IN_M3_S
+    return curl, v, psi / sv, t / sv, obs
+
+
+def _boundaries_kernel(t, valid, *, lat, max_gyre_boundaries, threshold):
+    """Gyre boundaries above ``threshold`` and every raw sign change."""
+    kw = dict(lat=lat, max_gyre_boundaries=max_gyre_boundaries)
+    return (*gyre_boundaries(t, valid, threshold=threshold, **kw),
+            *gyre_boundaries(t, valid, threshold=0.0, **kw))
 
 
 def _check_positive(value, name, *, allow_zero=False, fix=""):
@@ -344,6 +357,10 @@ def sverdrup_transport(
         )
     else:
         _check_geometry(geometry, grid)
+    # The geometry's grid keeps its cell widths and weights from call to call.
+    g_lay = geometry.grid.layout
+    if g_lay is not None and (g_lay.lat_name, g_lay.lon_name) == (lat, lon):
+        grid = geometry.grid
     cls, bid, names, plan = geometry.land.cls, geometry.basin_id, geometry.names, geometry.plan
     water = cls <= 1
     nb = len(names)
@@ -359,58 +376,47 @@ def sverdrup_transport(
         kwargs=dict(target=water, keep_missing=keep_missing, periodic=grid.periodic),
     )
     curl = curl_on_sphere(fx, fy, grid=grid, names=("taux", "tauy"))
-    # Cells touching the pole: 1/cos(phi) makes their curl spikes, not data. One multiply
-    # each (1 or NaN per row) masks the pole rows and, for V, the equatorial band.
-    if pole.any():
-        curl = curl * xr.DataArray(np.where(pole, np.nan, 1.0), dims=(lat,),
-                                   coords={lat: tx[lat]})
+    # Cells touching the pole: 1/cos(phi) makes their curl spikes, not data. V is also
+    # missing in the equatorial band. Both, the scan and the coverage of each row by observed
+    # stress run in one kernel, one pass per field.
+    pole_factor = np.where(pole, np.nan, 1.0)
     inv_rb = np.where(band | pole, np.nan, 1.0 / (rho0 * grid.beta))
-    v = curl * xr.DataArray(inv_rb, dims=(lat,), coords={lat: tx[lat]})
-    psi, transport = xr.apply_ufunc(
-        _scan_kernel,
-        whole_fields(v, (lat, lon)),
-        input_core_dims=[[lat, lon]],
-        output_core_dims=[[lat, lon], ["basin", lat]],
+    curl, v, psi, transport, observed = xr.apply_ufunc(
+        _integral_kernel,
+        whole_fields(curl, (lat, lon)), whole_fields(tx, (lat, lon)),
+        whole_fields(ty, (lat, lon)),
+        input_core_dims=[[lat, lon]] * 3,
+        output_core_dims=[[lat, lon], [lat, lon], [lat, lon], ["basin", lat], ["basin", lat]],
         dask="parallelized",
-        output_dtypes=[np.float64, np.float64],
+        output_dtypes=[np.float64] * 5,
         dask_gufunc_kwargs={"output_sizes": {"basin": nb}},
-        kwargs=dict(dx=grid.dx, cells=plan.cells, run_starts=plan.run_starts,
-                    group_runs=plan.group_runs, group_starts=plan.group_starts,
-                    group_slot=plan.group_slot, n_basins=nb),
+        kwargs=dict(pole_factor=pole_factor, inv_rb=inv_rb, dx=grid.dx, plan=plan,
+                    n_basins=nb),
+        # Keep the coordinates' attributes; the variables get their own in _assemble.
+        keep_attrs=True,
     )
-    order = [d for d in v.dims]
-    psi = psi.transpose(*order)
+    order = [d for d in tx.dims]
+    curl, v, psi, transport, observed = (_bare(x) for x in (curl, v, psi, transport, observed))
+    curl, v, psi = (x.transpose(*order) for x in (curl, v, psi))
     lead = [d for d in order if d not in (lat, lon)]
     transport = transport.transpose(*lead, "basin", lat)
-    # Coverage: the share of each row's counted cells whose stress was observed.
-    observed = xr.apply_ufunc(
-        _coverage_kernel, whole_fields(tx, (lat, lon)), whole_fields(ty, (lat, lon)),
-        input_core_dims=[[lat, lon], [lat, lon]], output_core_dims=[["basin", lat]],
-        dask="parallelized", output_dtypes=[np.float64],
-        dask_gufunc_kwargs={"output_sizes": {"basin": nb}},
-        kwargs=dict(cells=plan.count_cells, starts=plan.count_starts, slot=plan.count_slot,
-                    n_basins=nb),
-    ).transpose(*lead, "basin", lat)
+    observed = observed.transpose(*lead, "basin", lat)
     static = xr.DataArray(plan.row_status, dims=("basin", lat), coords={lat: tx[lat]})
     mean_obs = observed.mean(lead) if lead else observed
     status = xr.where((static == VALID) & (mean_obs < MIN_OBSERVED_FRACTION),
                       np.int8(MOSTLY_FILLED), static).astype(np.int8)
     valid = status == VALID
 
-    def boundaries(threshold):
-        return xr.apply_ufunc(
-            gyre_boundaries, transport, valid,
-            input_core_dims=[["basin", lat], ["basin", lat]],
-            output_core_dims=[["basin", "gyre_boundary"], ["basin"]],
-            dask="parallelized",
-            output_dtypes=[np.float64, np.int64],
-            dask_gufunc_kwargs={"output_sizes": {"gyre_boundary": max_gyre_boundaries}},
-            kwargs=dict(lat=grid.lat, max_gyre_boundaries=max_gyre_boundaries,
-                        threshold=threshold),
-        )
-
-    crossings, count = boundaries(gyre_threshold_sv)
-    raw_crossings, raw_count = boundaries(0.0)
+    crossings, count, raw_crossings, raw_count = xr.apply_ufunc(
+        _boundaries_kernel, transport, valid,
+        input_core_dims=[["basin", lat], ["basin", lat]],
+        output_core_dims=[["basin", "gyre_boundary"], ["basin"]] * 2,
+        dask="parallelized",
+        output_dtypes=[np.float64, np.int64] * 2,
+        dask_gufunc_kwargs={"output_sizes": {"gyre_boundary": max_gyre_boundaries}},
+        kwargs=dict(lat=grid.lat, max_gyre_boundaries=max_gyre_boundaries,
+                    threshold=gyre_threshold_sv),
+    )
 
     ds = _assemble(
         curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
@@ -429,18 +435,13 @@ def _check_geometry(geometry, grid):
             f"{type(geometry).__name__}. Fix: geometry=sverdrup_geometry(ocean_mask, ...)."
         )
     g = geometry.grid
-    if (g.shape != grid.shape or g.periodic != grid.periodic
+    if (g.shape != grid.shape or g.periodic != grid.periodic or g.radius != grid.radius
+            or g.omega != grid.omega
             or not np.allclose(g.lat, grid.lat) or not np.allclose(g.lon, grid.lon)):
         raise ValueError(
             f"geometry: expected a geometry built on the grid of taux ({grid!r}), found one "
             f"on {g!r}. Fix: build it from a mask on taux's grid."
         )
-
-
-def _coverage_kernel(tx, ty, *, cells, starts, slot, n_basins):
-    ny = tx.shape[-2]
-    c = coverage(tx, ty, cells, starts, slot, n_basins * ny)
-    return c.reshape(c.shape[:-1] + (n_basins, ny))
 
 
 def _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, original,
