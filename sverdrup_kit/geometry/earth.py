@@ -103,8 +103,6 @@ EARTH_LANDMARKS = {
     "Vancouver Island": (234.5, 49.6),
     "Tierra del Fuego": (291.0, -54.0),
     "Shikoku": (133.5, 33.7),
-    "Samar": (125.0, 12.0),
-    "Palawan": (118.5, 9.5),
     "Svalbard": (16.0, 78.5),
     # Parts of continents that a coarse grid may cut off through a one-cell-wide neck.
     "Malay Peninsula": (102.0, 4.5),

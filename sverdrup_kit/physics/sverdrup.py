@@ -345,6 +345,7 @@ def sverdrup_transport(
     grid = SphericalGrid(lay.lat, lay.lon, lay.periodic, radius, omega, ident)
 
     # Geometry: from grid, mask and options alone; cached.
+    mask_from_geometry = geometry is not None
     if geometry is None:
         ocean = _ocean_from(taux, tauy, ocean_mask, lay)
         depth = relief_depth(relief, taux, lay) if relief is not None else None
@@ -422,7 +423,7 @@ def sverdrup_transport(
         curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
         taux, rho0=rho0, band=equatorial_half_width, island_min_area_km2=island_min_area_km2,
         continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km, fill_gaps=fill_gaps,
-        given_mask=ocean_mask is not None,
+        given_mask=ocean_mask is not None or mask_from_geometry,
     )
     return _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, taux,
                         tx, gyre_threshold_sv=gyre_threshold_sv)
