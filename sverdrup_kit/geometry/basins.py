@@ -312,7 +312,6 @@ def _islands_join_basins(basin, cls, land_labels, periodic):
     small = cls == SMALL_ISLAND
     if not (small & (basin < 0)).any():
         return basin
-    ny, nx = basin.shape
     pairs = []
     for axis, k in ((0, 1), (0, -1), (1, 1), (1, -1)):
         nb_basin = np.roll(basin, k, axis=axis)
@@ -323,8 +322,12 @@ def _islands_join_basins(basin, cls, land_labels, periodic):
             nb_ocean[:, 0 if k == 1 else -1] = False
         ok = small & nb_ocean
         pairs.append(np.column_stack([land_labels[ok], nb_basin[ok]]))
-    p = np.unique(np.concatenate(pairs), axis=0)
+    p = np.concatenate(pairs)
+    p = p[p[:, 1] >= 0]  # ocean in no basin does not count
     n = int(land_labels.max()) + 1
+    nb = int(max(basin.max(), 0)) + 1
+    key = np.unique(p[:, 0] * nb + p[:, 1])
+    p = np.column_stack([key // nb, key % nb])
     n_basins_round = np.bincount(p[:, 0], minlength=n)
     only = np.full(n, -1, dtype=np.int64)
     single = p[n_basins_round[p[:, 0]] == 1]
@@ -359,7 +362,12 @@ def _auto_basins(water, grid, cls, land_labels, *, min_area):
                             minlength=n_nodes)
     a, b = node_of[:-1], node_of[1:]
     link = (a >= 0) & (b >= 0)
-    pairs = np.unique(np.column_stack([a[link], b[link]]), axis=0).reshape(-1, 2)
+    # Neighbouring columns mostly repeat a pair: drop repeats before the (1-D) unique.
+    key = np.where(link, a * n_nodes + b, -1)
+    rep = np.zeros_like(link)
+    rep[:, 1:] = key[:, 1:] == key[:, :-1]
+    key = np.unique(key[link & ~rep])
+    pairs = np.column_stack([key // n_nodes, key % n_nodes]).reshape(-1, 2)
     # Candidate junctions: nodes with two or more neighbours on one side.
     n_up = np.bincount(pairs[:, 0], minlength=n_nodes)
     n_down = np.bincount(pairs[:, 1], minlength=n_nodes)
