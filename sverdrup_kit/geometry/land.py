@@ -291,8 +291,8 @@ def island_table(ocean_mask, *, island_min_area_km2: float = ISLAND_MIN_AREA,
     ...                               dims=("lat", "lon")))
     >>> t.name.values.tolist(), t.land_class.values.tolist()
     (['land_0'], [2])
-    >>> float(t.north_lat), float(t.south_lat)
-    (35.0, 27.0)
+    >>> t.north_lat.values.tolist(), t.south_lat.values.tolist()
+    ([35.0], [27.0])
     """
     from .basins import _as_bool
     from .coords import from_canonical, require_dataarray, to_canonical

@@ -250,9 +250,9 @@ def sverdrup_transport(
         - ``observed_fraction`` (..., basin, lat): share of the counted cells whose stress
           was observed rather than filled;
         - ``land_class`` (lat, lon): 0 ocean, 1 small island, 2 large island, 3 continent;
-        - ``crossed_seas`` and ``ending_seas`` (basin, lat), str: the named seas the
-          counted ocean of a row crosses, and the excluded seas whose edge ends it
-          (Earth basins only).
+        - with the Earth basins, ``crossed_seas`` and ``ending_seas`` (basin, lat), str: the
+          named seas the counted ocean of a row crosses, and the excluded seas whose edge
+          ends it.
 
         Rows left empty are NaN, with the reason in ``row_status`` (CF flags) and in the attrs.
         ``row_status`` 0 is valid; 8 (poleward of the circumpolar band), 9 (over a shelf) and
@@ -476,15 +476,16 @@ def _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, 
                 "flag_values": np.arange(4, dtype=np.int8),
                 "flag_meanings": "ocean " + " ".join(v[0] for v in LAND_CLASSES.values()),
                 "comment": "; ".join(f"{v[0]}: {v[1]}" for v in LAND_CLASSES.values())}),
-            "crossed_seas": (("basin", lat), plan.crossed_seas.astype(str), {
-                "long_name": "named seas that the row's counted ocean crosses",
-                "comment": "space-separated names from sverdrup_kit.geometry.earth.EARTH_SEAS"}),
-            "ending_seas": (("basin", lat), plan.ending_seas.astype(str), {
-                "long_name": "excluded seas whose edge ends the row's counted ocean",
-                "comment": "the counted ocean ends where it meets these seas, as on a coast"}),
         },
         coords={lat: canon[lat], lon: canon[lon], "basin": ds["basin"].values},
     )
+    if geometry.basins_used.startswith("earth"):
+        extra["crossed_seas"] = (("basin", lat), plan.crossed_seas.astype(str), {
+            "long_name": "named seas that the row's counted ocean crosses",
+            "comment": "space-separated names from sverdrup_kit.geometry.earth.EARTH_SEAS"})
+        extra["ending_seas"] = (("basin", lat), plan.ending_seas.astype(str), {
+            "long_name": "excluded seas whose edge ends the row's counted ocean",
+            "comment": "the counted ocean ends where it meets these seas, as on a coast"})
     extra = from_canonical(extra, lay, original)
     out = ds.drop_vars(["row_status"]).merge(extra, compat="override", join="override")
     out["gyre_boundary_lat"].attrs["comment"] = (
