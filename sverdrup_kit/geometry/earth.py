@@ -238,12 +238,6 @@ EARTH_SEAS = {
                  (142.0, 45.6), (142.4, 47.0), (142.4, 52.5), (126.0, 52.5)],
         why="behind Japan's islands and Sakhalin",
     ),
-    "yellow_and_east_china_seas": dict(
-        basin="pacific", policy=EXCLUDED,
-        polygon=[(117.0, 25.5), (120.5, 25.5), (122.5, 25.8), (124.0, 28.0), (126.5, 30.5),
-                 (129.0, 31.0), (130.2, 33.0), (126.0, 33.5), (126.0, 41.0), (117.0, 41.0)],
-        why="shelf seas behind Korea and the Ryukyu Islands",
-    ),
     "sea_of_okhotsk": dict(
         basin="pacific", policy=EXCLUDED,
         polygon=[(142.4, 43.0), (145.5, 43.0), (156.0, 50.5), (156.0, 51.5), (156.5, 62.0),
