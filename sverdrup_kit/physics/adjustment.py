@@ -179,7 +179,7 @@ def _depths_m(coord: xr.DataArray, argname: str) -> np.ndarray:
 
 
 def first_mode_speed(n_squared, *, depth_dim: str | None = None, depth_edges=None,
-                     bottom_depth=None, max_spacing: float = 25.0) -> xr.DataArray:
+                     bottom_depth=None, max_spacing: float = 50.0) -> xr.DataArray:
     r"""Gravity-wave speed :math:`c_1` of the first baroclinic mode from a profile of :math:`N^2`.
 
     Parameters
@@ -273,7 +273,7 @@ def first_mode_speed(n_squared, *, depth_dim: str | None = None, depth_edges=Non
 
 
 def first_mode_speed_from_ts(temperature, salinity, *, depth_dim: str | None = None,
-                             max_spacing: float = 25.0) -> xr.DataArray:
+                             max_spacing: float = 50.0) -> xr.DataArray:
     r"""First baroclinic gravity-wave speed from a temperature and salinity climatology.
 
     Parameters
@@ -1005,7 +1005,7 @@ def _mode_speed_kernel(n2, *, edges, max_spacing):
     hi = ta.sum(axis=1) / (m * trial**2).sum(axis=1)
     lo = np.zeros_like(hi)
     tiny = np.finfo(float).tiny
-    for _ in range(60):
+    for _ in range(52):
         lam = 0.5 * (lo + hi)
         count = np.zeros(lam.size, dtype=int)
         piv = np.ones_like(lam)
