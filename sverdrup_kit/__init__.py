@@ -26,6 +26,13 @@ from .io.readers import open_stress, open_winds
 from .io.writers import write_netcdf
 from .ocean.hydrography import LinearEquationOfState, balance_check, geostrophic_transport
 from .ocean.observations import balance_section_observations, boundary_current_observations
+from .physics.adjustment import (
+    adjustment_flags,
+    first_mode_speed,
+    first_mode_speed_from_ts,
+    long_wave_response,
+    rossby_adjustment,
+)
 from .physics.barotropic import boundary_current, solve_barotropic, solve_basin
 from .physics.boundary_layers import (
     munk_boundary_layer,
@@ -45,6 +52,11 @@ from .pipeline import diagnose
 __version__ = "0.1.0"
 
 __all__ = [
+    "adjustment_flags",
+    "first_mode_speed",
+    "first_mode_speed_from_ts",
+    "long_wave_response",
+    "rossby_adjustment",
     "AIR_DENSITY",
     "balance_check",
     "balance_section_observations",

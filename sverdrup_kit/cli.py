@@ -129,6 +129,40 @@ def _summary(res, say) -> None:
             g = g[np.isfinite(g)]
             if g.size:
                 say(f"  gyre boundaries in {b}: " + ", ".join(latitude_label(x) for x in g))
+    _adjustment_summary(res, say, lats)
+
+
+def _adjustment_summary(res, say, lats) -> None:
+    """Rossby-wave crossing times and the rows whose time-resolved transport had time to adjust."""
+    if "basin_crossing_time" not in res:
+        return
+    years = res["basin_crossing_time"] / 365.25
+    say("long Rossby-wave crossing time from the eastern coast to the western boundary (years):")
+    for b in years["basin"].values:
+        row = years.sel(basin=b)
+        vals = [float(row.sel(lat=la, method="nearest")) if row.lat.min() <= la <= row.lat.max()
+                else np.nan for la in lats]
+        if np.isfinite(vals).any():
+            say(f"  {str(b):<16s} " + "".join(f"{v:7.1f}" if np.isfinite(v) else "      -"
+                                               for v in vals))
+    if "sverdrup_adjusted" not in res or "interior_transport_by_time" not in res:
+        return
+    scale = res["interior_transport_by_time"].attrs.get("adjustment_time_scale")
+    if scale not in res["sverdrup_adjusted"]["time_scale"].values:
+        return
+    say(f"rows where the {scale} transports (interior_transport_by_time) had time to adjust "
+        "to Sverdrup balance:")
+    flags = res["sverdrup_adjusted"].sel(time_scale=scale)
+    valid = res["row_status"] == 0
+    for b in flags["basin"].values:
+        ok = ((flags.sel(basin=b) == 1) & valid.sel(basin=b)).values
+        if not valid.sel(basin=b).any():
+            continue
+        lat = flags["lat"].values
+        edges = np.flatnonzero(np.diff(np.concatenate([[0], ok.astype(int), [0]])))
+        spans = [f"{latitude_label(lat[i])} to {latitude_label(lat[j - 1])}"
+                 for i, j in zip(edges[::2], edges[1::2])]
+        say(f"  {str(b):<16s} " + ("; ".join(spans) if spans else "none"))
 
 
 def _run_diagnose(args) -> int:

@@ -8,11 +8,13 @@ from __future__ import annotations
 
 import warnings
 
+import numpy as np
 import xarray as xr
 
 from . import constants
 from .physics.ekman import DEFAULT_EQUATORIAL_HALF_WIDTH, ekman
 from .physics.stress import wind_stress
+from .physics.adjustment import adjustment_flags, averaging_period, rossby_adjustment
 from .physics.sverdrup import sverdrup_transport
 
 __all__ = ["diagnose"]
@@ -31,6 +33,13 @@ def _stress_from(winds: xr.Dataset, *, drag_law, air_density, use_wind_speed) ->
     return wind_stress(winds["u"], winds["v"], drag_law=drag_law, air_density=air_density, wind_speed=speed)
 
 
+def _dated(time: xr.DataArray) -> bool:
+    """Whether a time coordinate holds dates (undecodable climatology times stay numbers)."""
+    v = time.values
+    return bool(np.issubdtype(v.dtype, np.datetime64) or (v.dtype == object and v.size and hasattr(
+        v[0], "calendar")))
+
+
 def diagnose(
     winds: xr.Dataset,
     *,
@@ -41,6 +50,7 @@ def diagnose(
     ocean_mask=None,
     rho0: float = constants.RHO0,
     equatorial_half_width: float = DEFAULT_EQUATORIAL_HALF_WIDTH,
+    first_mode_speed=None,
 ) -> xr.Dataset:
     """Run the data path on a wind (or stress) climatology.
 
@@ -56,6 +66,10 @@ def diagnose(
         better choice for monthly climatologies).
     basins, ocean_mask, rho0, equatorial_half_width
         Passed to :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport` and :func:`~sverdrup_kit.physics.ekman.ekman`.
+    first_mode_speed : None, float or xarray.DataArray (lat, lon), optional
+        First baroclinic gravity-wave speed in m s-1 for the Rossby-wave adjustment times,
+        passed to :func:`~sverdrup_kit.physics.adjustment.rossby_adjustment` (default: its
+        documented default stratification).
 
     Returns
     -------
@@ -63,7 +77,13 @@ def diagnose(
         Time-mean stress, curl, Ekman fields and every Sverdrup result, plus, when the input
         has a ``time`` dimension, ``interior_transport_by_time`` (time, basin, lat): the
         Sverdrup interior transport of each time step (the seasonal cycle of a climatology).
-        Lazy where the input is.
+        The Rossby-wave adjustment of :func:`~sverdrup_kit.physics.adjustment.rossby_adjustment`
+        (``basin_crossing_time`` and the fields beside it) and ``sverdrup_adjusted``
+        (time_scale, basin, lat) from :func:`~sverdrup_kit.physics.adjustment.adjustment_flags`:
+        whether each row had time to adjust at the monthly, seasonal and annual scales (and
+        the record length when the record is longer than a year); the scale of the input's
+        own steps is named in the ``adjustment_time_scale`` attribute of
+        ``interior_transport_by_time``. Lazy where the input is.
 
     Notes
     -----
@@ -94,13 +114,19 @@ def diagnose(
     sv = sverdrup_transport(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
                   equatorial_half_width=equatorial_half_width)
     ek = ekman(mean["taux"], mean["tauy"], rho0=rho0, equatorial_half_width=equatorial_half_width)
-    out = xr.merge([mean, ek, sv], compat="override", combine_attrs="drop_conflicts")
+    adj = rossby_adjustment(sv, first_mode_speed=first_mode_speed)
+    out = xr.merge([mean, ek, sv, adj], compat="override", combine_attrs="drop_conflicts")
+    dated = has_time and stress.sizes["time"] > 1 and _dated(stress["time"])
+    out["sverdrup_adjusted"] = adjustment_flags(adj["basin_crossing_time"],
+                                                time=stress["time"] if dated else None)
     if has_time:
         monthly = sverdrup_transport(stress["taux"], stress["tauy"], basins=basins, ocean_mask=ocean_mask,
                            rho0=rho0, equatorial_half_width=equatorial_half_width)
         out["interior_transport_by_time"] = monthly["interior_transport"].assign_attrs(
             monthly["interior_transport"].attrs,
             long_name="Sverdrup interior transport of each time step",
+            ancillary_variables="sverdrup_adjusted",
+            adjustment_time_scale=averaging_period(stress["time"])[0] if dated else "unknown",
         )
     out.attrs.update(
         title="Wind-driven circulation diagnosed from a wind climatology",

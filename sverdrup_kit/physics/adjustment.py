@@ -680,7 +680,8 @@ def adjustment_flags(crossing_time, *, time=None) -> xr.DataArray:
         ``basin_crossing_time`` of :func:`rossby_adjustment`, in days.
     time : xarray.DataArray (time,), optional
         The record's dates. Adds the time scale ``"record"`` (number of steps times the median
-        step) and, when the step is not monthly, seasonal or annual, ``"input_step"``.
+        step) when that is longer than 1.2 years and, when the step is not monthly, seasonal or
+        annual, ``"input_step"``.
 
     Returns
     -------
@@ -706,12 +707,15 @@ def adjustment_flags(crossing_time, *, time=None) -> xr.DataArray:
         name, step = averaging_period(time)
         if name == "input_step":
             scales[name] = step
-        scales["record"] = step * time.size
+        # A record of a year or less (a climatology's 12 months) adds nothing to "annual".
+        if step * time.size > 1.2 * DAYS_PER_YEAR:
+            scales["record"] = step * time.size
     lengths = xr.DataArray(list(scales.values()), dims="time_scale",
                            coords={"time_scale": list(scales)})
     ok = ct < lengths
     flags = xr.where(ct.notnull(), ok.astype(np.int8), np.int8(2)).astype(np.int8)
     flags = flags.transpose("time_scale", *ct.dims)
+    flags.attrs = {}
     return flags.rename("sverdrup_adjusted").assign_coords(
         time_scale_length=("time_scale", list(scales.values()),
                            {"long_name": "length of the time scale", "units": "days"})
@@ -912,7 +916,7 @@ def long_wave_response(taux, tauy, sverdrup_result, *, first_mode_speed=None,
         v_out[:, cells] = v
         if runs.counted[k]:
             b, j = runs.basin[k], runs.row[k]
-            t_out[:, b, j] += (v * dx.flat[cells]).sum(axis=1) / constants.SVERDRUP
+            t_out[:, b, j] += (v * dx.flat[cells]).sum(axis=1) / constants.SVERDRUP_IN_M3_S
             has_row[b, j] = True
     t_out = np.where(has_row[None], t_out, np.nan)
 

@@ -367,7 +367,8 @@ def test_standard_figures_of_the_real_pipeline(strict, tmp_path, world):
 
     res = diagnose(world).compute()
     paths = plotting.save_standard_figures(res, tmp_path, width="column", dpi=80)
-    assert len(paths) == 6
+    assert len(paths) == 7
+    assert paths[-1].name == "crossing_time.png"
 
 
 def test_global_rcparams_untouched(strict, result):
