@@ -191,8 +191,8 @@ def mark_adjusted_rows(ax, flags, *, fs=None, handles=None):
                                                          edgecolor="0.2", lw=0.4, label=label))
 
 
-def plot_lagged_transport(response, sverdrup_by_time, *, basin, lats, width="column",
-                          title=None):
+def plot_lagged_transport(response, sverdrup_by_time, *, basin, lats, anomaly: bool = False,
+                          width="column", title=None):
     """Instantaneous Sverdrup transport beside the lagged long-wave response, at a few rows.
 
     Parameters
@@ -207,6 +207,8 @@ def plot_lagged_transport(response, sverdrup_by_time, *, basin, lats, width="col
     basin : str
     lats : sequence of float
         Latitudes (nearest rows) of the panels, one each.
+    anomaly : bool, optional
+        Draw the change since the first step (both curves) instead of the transport.
     width : "column", "page" or float
     title : str, optional
 
@@ -228,6 +230,10 @@ def plot_lagged_transport(response, sverdrup_by_time, *, basin, lats, width="col
     lats = list(np.atleast_1d(lats))
     shown_lw, units = _as_display(lw.sel(basin=basin))
     shown_sv, _ = _as_display(sv.sel(basin=basin))
+    if anomaly:
+        shown_lw = shown_lw - shown_lw.isel(time=0)
+        shown_sv = shown_sv - shown_sv.isel(time=0)
+    quantity = "change" if anomaly else "transport"
     t = lw["time"].values
     w = _figure_width(width)
     fs = _fonts(w)
@@ -238,12 +244,13 @@ def plot_lagged_transport(response, sverdrup_by_time, *, basin, lats, width="col
         for ax, la in zip(axes, lats):
             a = shown_sv.sel({lat_dim: la}, method="nearest")
             b = shown_lw.sel({lat_dim: la}, method="nearest")
-            ax.axhline(0, color="0.5", lw=0.5)
+            if anomaly or np.nanmin(a.values) < 0 < np.nanmax(a.values):
+                ax.axhline(0, color="0.5", lw=0.5)
             ax.plot(t, a.values, color="0.45", lw=0.9, label="Sverdrup, instantaneous")
             ax.plot(t, b.values, color="#b2182b", lw=1.2, label="long-wave model (lagged)")
             ax.set_title(f"{basin}, {_lat_text(float(a[lat_dim]))}", fontsize=fs["base"],
                          loc="left")
-            ax.set_ylabel(f"transport ({units})" if units else "transport", fontsize=fs["base"])
+            ax.set_ylabel(f"{quantity} ({units})" if units else quantity, fontsize=fs["base"])
             _style(ax, fs)
         handles, labels = axes[0].get_legend_handles_labels()
         fig.legend(handles, labels, loc="outside lower center", ncols=2, frameon=False,
