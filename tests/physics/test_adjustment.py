@@ -365,3 +365,56 @@ def test_levitus_rossby_radius_in_published_ranges(levitus):
     assert 5.0 <= float(med.sel(YAXLEVITR=59.5)) <= 25.0
     assert 5.0 <= float(med.sel(YAXLEVITR=-59.5)) <= 25.0
     assert float(med.sel(YAXLEVITR=2.5)) > 200.0
+
+
+# ------------------------------------------------------------------------------------------
+# The flags in the pipeline and on the command line
+# ------------------------------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def world_diagnosis():
+    from sverdrup_kit.pipeline import diagnose
+    from sverdrup_kit.synthetic import load_world, world_basins
+
+    world = load_world()
+    return diagnose(world, basins=world_basins(world)).compute()
+
+
+def test_diagnose_flags_each_row_at_the_input_step(world_diagnosis):
+    res = world_diagnosis
+    by_time = res.interior_transport_by_time
+    # 12 mid-month steps: the monthly scale; a record of one year adds no "record" scale.
+    assert by_time.attrs["adjustment_time_scale"] == "monthly"
+    assert by_time.attrs["ancillary_variables"] == "sverdrup_adjusted"
+    flags = res.sverdrup_adjusted
+    assert list(flags.time_scale.values) == ["monthly", "seasonal", "annual"]
+    ct = res.basin_crossing_time
+    has = ct.notnull().values
+    for scale, days in TIME_SCALES.items():
+        f = flags.sel(time_scale=scale).values
+        np.testing.assert_array_equal(f[has] == 1, ct.values[has] < days)
+    assert (flags.values[:, ~has] == 2).all()
+    # At 31N the Halcyon Ocean is 124 degrees wide (66E-190E beside the Quillon Peninsula, the
+    # world's own table in sverdrup_kit.synthetic) and takes years to adjust: derived from the
+    # default c1 and c_R = beta c1^2 / f^2.
+    c1 = float(first_mode_speed(default_n_squared()))
+    width = R * np.cos(np.deg2rad(31.0)) * np.deg2rad(124.0)
+    expected = width / long_wave_speed(31.0, c1) / DAY
+    assert float(ct.sel(basin="halcyon", lat=31.0)) == pytest.approx(expected, rel=1e-9)
+    assert int(flags.sel(time_scale="annual", basin="halcyon", lat=31.0)) == 0
+
+
+def test_command_line_prints_crossing_times_and_adjusted_rows(tmp_path, capsys):
+    from sverdrup_kit.cli import main
+
+    code = main(["diagnose", "--synthetic", "--out", str(tmp_path), "--no-figures",
+                 "--no-progress"])
+    out = capsys.readouterr().out
+    assert code == 0
+    assert "long Rossby-wave crossing time" in out
+    assert "rows where the monthly transports (interior_transport_by_time) had time" in out
+    with xr.open_dataset(tmp_path / "results.nc") as ds:
+        assert ds.sverdrup_adjusted.attrs["flag_meanings"] == (
+            "not_adjusted adjusted no_crossing_time")
+        assert ds.basin_crossing_time.attrs["units"] == "days"
