@@ -28,6 +28,7 @@ from .ocean.hydrography import LinearEquationOfState, balance_check, geostrophic
 from .ocean.observations import balance_section_observations, boundary_current_observations
 from .physics.adjustment import (
     adjustment_flags,
+    default_n_squared,
     first_mode_speed,
     first_mode_speed_from_ts,
     long_wave_response,
@@ -53,6 +54,7 @@ __version__ = "0.1.0"
 
 __all__ = [
     "adjustment_flags",
+    "default_n_squared",
     "first_mode_speed",
     "first_mode_speed_from_ts",
     "long_wave_response",

@@ -26,7 +26,8 @@ import xarray as xr
 
 from .. import constants
 from .._compiled.dispatch import curl_kernel, fill_from_neighbours
-from ..geometry.coords import GridError, from_canonical, require_dataarray, to_canonical
+from ..errors import GridError, InputError
+from ..geometry.coords import from_canonical, require_dataarray, to_canonical
 from ..geometry.grid import SphericalGrid
 from ..io.units import to_si
 
@@ -102,7 +103,7 @@ def default_n_squared(depth=None, *, n0: float = DEFAULT_STRATIFICATION["n0"],
     for name, value in (("n0", n0), ("e_folding_depth", e_folding_depth),
                         ("bottom_depth", bottom_depth)):
         if not (np.isfinite(value) and value > 0):
-            raise ValueError(f"{name}: expected a finite positive number, found {value!r}. "
+            raise InputError(f"{name}: expected a finite positive number, found {value!r}. "
                              f"Fix: e.g. {name}={DEFAULT_STRATIFICATION[name]}.")
     if depth is None:
         edges = np.arange(0.0, bottom_depth + 1e-9, 10.0)
@@ -138,7 +139,7 @@ def _edges_from_centres(depth, bottom_depth=None):
 def _depth_dim(da: xr.DataArray, depth_dim, argname: str) -> str:
     if depth_dim is not None:
         if depth_dim not in da.dims:
-            raise ValueError(f"depth_dim: expected a dimension of {argname} {da.dims}, found "
+            raise InputError(f"depth_dim: expected a dimension of {argname} {da.dims}, found "
                              f"{depth_dim!r}. Fix: pass the name of the vertical dimension.")
         return depth_dim
     found = [d for d in da.dims
@@ -146,7 +147,7 @@ def _depth_dim(da: xr.DataArray, depth_dim, argname: str) -> str:
              or str(da[d].attrs.get("positive", "")).lower() in ("up", "down")
              or str(da[d].attrs.get("axis", "")).upper() == "Z"]
     if len(found) != 1:
-        raise ValueError(
+        raise InputError(
             f"{argname}: expected one vertical dimension (named like depth or z, or with a "
             f"'positive' or axis='Z' attribute), found dims {da.dims}. Fix: pass depth_dim='...'."
         )
@@ -159,7 +160,7 @@ def _depths_m(coord: xr.DataArray, argname: str) -> np.ndarray:
     factor = {"m": 1.0, "meter": 1.0, "meters": 1.0, "metre": 1.0, "metres": 1.0,
               "km": 1e3, "cm": 1e-2}.get(units)
     if factor is None:
-        raise ValueError(
+        raise InputError(
             f"{argname}: expected a vertical coordinate '{coord.name}' in m, found units "
             f"{coord.attrs.get('units')!r}. Fix: convert to depth in m (for pressure in dbar, "
             "use -gsw.z_from_p(p, lat))."
@@ -169,12 +170,12 @@ def _depths_m(coord: xr.DataArray, argname: str) -> np.ndarray:
                                                                 and np.nanmin(z) < 0):
         z = -z
     if z.size > 1 and not np.all(np.diff(z) > 0):
-        raise ValueError(
+        raise InputError(
             f"{argname}: expected depths increasing downward along '{coord.name}', found "
             f"{z[:4]}... Fix: sort by depth, e.g. {argname}.sortby('{coord.name}')."
         )
     if z.size and z[0] < 0:
-        raise ValueError(f"{argname}: expected depths >= 0 m, found {z[0]:g} m at the top.")
+        raise InputError(f"{argname}: expected depths >= 0 m, found {z[0]:g} m at the top.")
     return z
 
 
@@ -189,7 +190,8 @@ def first_mode_speed(n_squared, *, depth_dim: str | None = None, depth_edges=Non
         or positive up with negative values). Each value holds over a layer whose edges are
         ``depth_edges`` when given, else half-way between samples, with the top at the sea
         surface. NaN marks levels below the bottom: each column ends
-        at the lower edge of its deepest valid value. Negative values (static instability)
+        at the lower edge of its deepest valid value (a missing value above it counts as
+        zero). Negative values (static instability)
         are taken as zero. Any other dimensions (lat, lon, ...) are columns.
     depth_dim : str, optional
         Name of the vertical dimension, when it is not found by name or attribute.
@@ -225,6 +227,18 @@ def first_mode_speed(n_squared, *, depth_dim: str | None = None, depth_edges=Non
     of thickness :math:`h_1, h_2` with reduced gravity :math:`g'` give
     :math:`c_1 = \sqrt{g' h_1 h_2/(h_1 + h_2)}`.
 
+    Examples
+    --------
+    Constant :math:`N = 2\times10^{-3}` s-1 over 4000 m: :math:`NH/\pi = 2.546` m s-1.
+
+    >>> import numpy as np, xarray as xr
+    >>> depth = np.arange(50.0, 4000.0, 100.0)
+    >>> n2 = xr.DataArray(np.full(depth.size, 4e-6), dims="depth", coords={"depth": depth},
+    ...                   attrs={"units": "s-2"})
+    >>> c1 = float(first_mode_speed(n2))
+    >>> abs(c1 / (2e-3 * 4000.0 / np.pi) - 1) < 1e-4
+    True
+
     References
     ----------
     Gill, A. E. (1982). Atmosphere-Ocean Dynamics. Academic Press, sections 6.11 and 6.17.
@@ -240,22 +254,22 @@ def first_mode_speed(n_squared, *, depth_dim: str | None = None, depth_edges=Non
     else:
         edges = np.abs(np.asarray(depth_edges, dtype=np.float64))
         if edges.shape != (depth.size + 1,) or not np.all(np.diff(edges) > 0):
-            raise ValueError(
+            raise InputError(
                 f"depth_edges: expected {depth.size + 1} increasing depths in m (one more than "
                 f"the levels of n_squared), found shape {edges.shape}. Fix: pass the layer "
                 "edges, top (0) to bottom.")
     if bottom_depth is not None:
         if not (np.isfinite(bottom_depth) and bottom_depth > edges[-2]):
-            raise ValueError(
+            raise InputError(
                 f"bottom_depth: expected a depth in m below the last layer's top ({edges[-2]:g}"
                 f" m), found {bottom_depth!r}. Fix: pass a deeper bottom or None.")
         edges = edges.copy()
         edges[-1] = float(bottom_depth)
     if not (np.isfinite(max_spacing) and max_spacing > 0):
-        raise ValueError(f"max_spacing: expected a positive number of m, found {max_spacing!r}.")
+        raise InputError(f"max_spacing: expected a positive number of m, found {max_spacing!r}.")
     units = str(n2.attrs.get("units", "s-2")).replace(" ", "").lower()
     if units not in ("s-2", "1/s2", "s**-2", "s^-2", "1/s^2", "rad2s-2", "radians2s-2"):
-        raise ValueError(f"n_squared: expected units s-2, found {n2.attrs.get('units')!r}. "
+        raise InputError(f"n_squared: expected units s-2, found {n2.attrs.get('units')!r}. "
                          "Fix: convert, or set n_squared.attrs['units'] = 's-2'.")
     data = n2.chunk({zdim: -1}) if n2.chunks is not None else n2
     out = xr.apply_ufunc(
@@ -312,12 +326,12 @@ def first_mode_speed_from_ts(temperature, salinity, *, depth_dim: str | None = N
     s = require_dataarray(salinity, "salinity")
     zdim = _depth_dim(t, depth_dim, "temperature")
     if t.dims != s.dims or t.shape != s.shape:
-        raise ValueError(f"temperature and salinity: expected the same dims and shape, found "
+        raise InputError(f"temperature and salinity: expected the same dims and shape, found "
                          f"{t.dims} {t.shape} and {s.dims} {s.shape}. Fix: pass fields of the "
                          "same climatology.")
     depth = _depths_m(t[zdim], "temperature")
     if depth.size < 2:
-        raise ValueError(f"temperature: expected at least 2 levels along '{zdim}', found "
+        raise InputError(f"temperature: expected at least 2 levels along '{zdim}', found "
                          f"{depth.size}.")
     grid = SphericalGrid.from_data(t, argname="temperature")
     lay = grid.layout
@@ -434,7 +448,7 @@ def _runs_of(result: xr.Dataset, *, radius, omega) -> tuple[_Runs, object]:
     return runs, lay
 
 
-def _speed_on_grid(first_mode, runs: _Runs, lay, like: xr.DataArray) -> np.ndarray:
+def _speed_on_grid(first_mode, runs: _Runs, lay) -> np.ndarray:
     """c1 (ny, nx) on the canonical grid, gaps inside the integrated cells filled."""
     grid = runs.grid
     if first_mode is None:
@@ -442,20 +456,17 @@ def _speed_on_grid(first_mode, runs: _Runs, lay, like: xr.DataArray) -> np.ndarr
         return np.full(grid.shape, c1)
     if isinstance(first_mode, (int, float, np.floating, np.integer)):
         if not (np.isfinite(first_mode) and first_mode > 0):
-            raise ValueError(f"first_mode_speed: expected a positive speed in m s-1, found "
+            raise InputError(f"first_mode_speed: expected a positive speed in m s-1, found "
                              f"{first_mode!r}. Fix: e.g. first_mode_speed=2.5.")
         return np.full(grid.shape, float(first_mode))
     c1 = require_dataarray(first_mode, "first_mode_speed")
     extra = [d for d in c1.dims if d not in (lay.lat_name, lay.lon_name)]
     if extra:
-        raise ValueError(
+        raise InputError(
             f"first_mode_speed: expected (lat, lon) on the grid of sverdrup_result, found "
             f"dims {c1.dims}. Fix: select one field, e.g. first_mode_speed.isel({extra[0]}=0)."
         )
-    try:
-        lay_c = SphericalGrid.from_data(c1, argname="first_mode_speed").layout
-    except GridError:
-        raise
+    lay_c = SphericalGrid.from_data(c1, argname="first_mode_speed").layout
     same = (lay_c.lat.shape == lay.lat.shape and lay_c.lon.shape == lay.lon.shape
             and np.allclose(lay_c.lat, lay.lat) and np.allclose(
                 np.mod(lay_c.lon - lay.lon + 180.0, 360.0) - 180.0, 0.0, atol=1e-6))
@@ -475,7 +486,7 @@ def _speed_on_grid(first_mode, runs: _Runs, lay, like: xr.DataArray) -> np.ndarr
     filled = fill_from_neighbours(vals, target=target | np.isfinite(vals),
                                   periodic=grid.periodic)
     if target.any() and np.isnan(filled[target]).any():
-        raise ValueError(
+        raise InputError(
             "first_mode_speed: expected values in (or next to) every basin integrated by the "
             "Sverdrup result, found a basin with none. Fix: compute it over the same ocean, or "
             "pass a single speed, e.g. first_mode_speed=2.5."
@@ -567,7 +578,7 @@ def rossby_adjustment(sverdrup_result, *, first_mode_speed=None,
     runs, lay = _runs_of(sverdrup_result, radius=radius, omega=omega)
     grid = runs.grid
     like = sverdrup_result["basin_id"]
-    c1 = _speed_on_grid(first_mode_speed, runs, lay, like)
+    c1 = _speed_on_grid(first_mode_speed, runs, lay)
     faces, c_r = _travel_times(runs, c1)
     ny, nx = grid.shape
     t_cell = np.full(ny * nx, np.nan)
@@ -580,7 +591,8 @@ def rossby_adjustment(sverdrup_result, *, first_mode_speed=None,
             t_row[b, j] = np.fmax(t_row[b, j], s[-1])
     t_cell = t_cell.reshape(ny, nx) / SECONDS_PER_DAY
     t_row = t_row / SECONDS_PER_DAY
-    ocean = np.isfinite(t_cell) | np.isfinite(c1)
+    water = np.asarray(to_canonical(like, lay).transpose(lay.lat_name, lay.lon_name).values) >= 0
+    ocean = (np.isfinite(t_cell) | water) & np.isfinite(c1)
     with np.errstate(divide="ignore", invalid="ignore"):
         rd = c1 / np.abs(grid.f[:, None])
     hw = (lay.lat_name, lay.lon_name)
@@ -662,7 +674,7 @@ def averaging_period(time) -> tuple[str, float]:
     """
     t = time if isinstance(time, xr.DataArray) else xr.DataArray(np.asarray(time), dims="time")
     if t.size < 2:
-        raise ValueError(f"time: expected at least 2 steps to tell the averaging period, found "
+        raise InputError(f"time: expected at least 2 steps to tell the averaging period, found "
                          f"{t.size}. Fix: pass the record's time coordinate.")
     step = float(np.median(np.diff(_seconds(t, "time")))) / SECONDS_PER_DAY
     for name, days in TIME_SCALES.items():
@@ -700,7 +712,7 @@ def adjustment_flags(crossing_time, *, time=None) -> xr.DataArray:
     """
     ct = require_dataarray(crossing_time, "crossing_time")
     if "basin" not in ct.dims:
-        raise ValueError(f"crossing_time: expected (basin, lat) from rossby_adjustment, found "
+        raise InputError(f"crossing_time: expected (basin, lat) from rossby_adjustment, found "
                          f"dims {ct.dims}. Fix: pass result['basin_crossing_time'].")
     scales = dict(TIME_SCALES)
     if time is not None:
@@ -831,21 +843,21 @@ def long_wave_response(taux, tauy, sverdrup_result, *, first_mode_speed=None,
     tauy = require_dataarray(tauy, "tauy")
     _check_result(sverdrup_result)
     if "time" not in taux.dims or "time" not in tauy.dims:
-        raise ValueError(f"taux: expected a 'time' dimension (the record), found dims "
+        raise InputError(f"taux: expected a 'time' dimension (the record), found dims "
                          f"{taux.dims}. Fix: for a single field use sverdrup_transport.")
     if taux.sizes["time"] < 2:
-        raise ValueError(f"taux: expected at least 2 time steps, found {taux.sizes['time']}.")
+        raise InputError(f"taux: expected at least 2 time steps, found {taux.sizes['time']}.")
     if initial not in ("rest", "steady"):
-        raise ValueError(f"initial: expected 'rest' or 'steady', found {initial!r}.")
+        raise InputError(f"initial: expected 'rest' or 'steady', found {initial!r}.")
     if damping_time is not None and not (np.isfinite(damping_time) and damping_time > 0):
-        raise ValueError(f"damping_time: expected a positive number of days or None, found "
+        raise InputError(f"damping_time: expected a positive number of days or None, found "
                          f"{damping_time!r}. Fix: e.g. damping_time=3650 (10 years).")
     runs, lay = _runs_of(sverdrup_result, radius=radius, omega=omega)
     grid = runs.grid
     lay_t = SphericalGrid.from_data(taux, argname="taux").layout
     extra = [d for d in taux.dims if d not in ("time", lay_t.lat_name, lay_t.lon_name)]
     if extra:
-        raise ValueError(f"taux: expected dims (time, lat, lon), found {taux.dims}. Fix: select "
+        raise InputError(f"taux: expected dims (time, lat, lon), found {taux.dims}. Fix: select "
                          f"one value of {extra}, e.g. taux.isel({extra[0]}=0).")
     if not (lay_t.lat.shape == lay.lat.shape and np.allclose(lay_t.lat, lay.lat)
             and lay_t.lon.shape == lay.lon.shape and np.allclose(
@@ -857,7 +869,7 @@ def long_wave_response(taux, tauy, sverdrup_result, *, first_mode_speed=None,
         )
     t_sec = _seconds(taux["time"], "taux")
     if not np.all(np.diff(t_sec) > 0):
-        raise ValueError("taux: expected increasing times, found repeated or unsorted dates. "
+        raise InputError("taux: expected increasing times, found repeated or unsorted dates. "
                          "Fix: taux.sortby('time').")
     ny, nx = grid.shape
     target = np.zeros((ny, nx), dtype=bool)
@@ -882,9 +894,9 @@ def long_wave_response(taux, tauy, sverdrup_result, *, first_mode_speed=None,
         v_ek = -tx / (rho0 * f)
     w_e = np.where(target, w_e, np.nan)
     if np.isnan(w_e.reshape(w_e.shape[0], -1)[:, target.ravel()]).any():
-        raise ValueError("taux: expected stress over every basin of sverdrup_result in every "
+        raise InputError("taux: expected stress over every basin of sverdrup_result in every "
                          "time step, found a basin with none. Fix: use the same ocean mask.")
-    c1 = _speed_on_grid(first_mode_speed, runs, lay, sverdrup_result["basin_id"])
+    c1 = _speed_on_grid(first_mode_speed, runs, lay)
     faces, c_r = _travel_times(runs, c1)
     rate = 0.0 if damping_time is None else 1.0 / (damping_time * SECONDS_PER_DAY)
     n_t = t_sec.size
