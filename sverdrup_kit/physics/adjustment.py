@@ -940,7 +940,6 @@ def long_wave_response(taux, tauy, sverdrup_result, *, first_mode_speed=None,
     ds = xr.Dataset({
         "thermocline_anomaly": (hw, h_out.reshape(n_t, ny, nx), dict(
             long_name="upper-layer thickness anomaly of the long-wave model", units="m",
-            positive="down",
             comment="positive where the thermocline is deeper; h_t - c_R h_x = -w_E - r h, "
             "h = 0 at each eastern coast")),
         "long_wave_northward_transport": (hw, v_out.reshape(n_t, ny, nx), dict(

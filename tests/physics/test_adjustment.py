@@ -289,7 +289,37 @@ def test_periodic_forcing_against_the_closed_form(damping_days):
         np.testing.assert_allclose(np.angle(got[big] / expected[big]), 0.0, atol=0.01)
 
 
-def test_lagged_response_on_an_island_row_and_any_longitude_convention():
+def test_island_rows_restart_at_each_eastern_coast():
+    # A large island (10 x 10 degrees, about 1e6 km2: above the 1e5 km2 island threshold,
+    # below the continent one) splits rows 25-35N into two runs; each starts at its own
+    # eastern coast (Godfrey 1989's island geometry as the Sverdrup integral treats it), so the
+    # row's crossing time is the longer run's (derived), and after it the long-wave model
+    # carries the toolkit's Sverdrup transport on those rows too.
+    taux, tauy = box_record(lambda t: np.ones_like(t), n_steps=12 * 12 + 1,
+                            step_days=365.25 / 12)
+    island = ((taux.lon > 20) & (taux.lon < 30) & (taux.lat > 25) & (taux.lat < 35))
+    taux, tauy = taux.where(~island), tauy.where(~island)
+    sv = sverdrup_transport(taux.isel(time=0), tauy.isel(time=0))
+    assert int(sv.row_status.sel(basin="basin_0", lat=30.5)) == 0
+    adj = rossby_adjustment(sv, first_mode_speed=2.5)
+    lat = 30.5
+    longer = R * np.cos(np.deg2rad(lat)) * np.deg2rad(LON_EAST - 30.0)
+    assert float(adj.basin_crossing_time.sel(basin="basin_0", lat=lat)) == pytest.approx(
+        longer / long_wave_speed(lat, 2.5) / DAY, rel=1e-9)
+    west_edge = R * np.cos(np.deg2rad(lat)) * np.deg2rad(0.5)
+    assert float(adj.rossby_crossing_time.sel(lat=lat, lon=19.5)) == pytest.approx(
+        west_edge / long_wave_speed(lat, 2.5) / DAY, rel=1e-9)
+    res = long_wave_response(taux, tauy, sv, first_mode_speed=2.5)
+    days = (res.time - res.time[0]).dt.days.values
+    for la in (26.5, 30.5, 34.5):
+        ref = float(sv.interior_transport.sel(basin="basin_0", lat=la))
+        cross = float(adj.basin_crossing_time.sel(basin="basin_0", lat=la))
+        lw = res.long_wave_interior_transport.sel(basin="basin_0", lat=la).values
+        assert (days > cross + 31).any()
+        np.testing.assert_allclose(lw[days > cross + 31], ref, rtol=0.01)
+
+
+def test_lagged_response_in_any_longitude_convention():
     # STYLE habit 8 (gsw's lonshift fixture, common practice): the same basin written on
     # -180..180 gives the same crossing times and the same lagged transport.
     taux, tauy = box_record(lambda t: 1 + 0.5 * np.sin(2 * np.pi * t / YEAR), n_steps=25,
