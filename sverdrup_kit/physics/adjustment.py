@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 import xarray as xr
@@ -494,13 +495,10 @@ def _speed_on_grid(first_mode, runs: _Runs, lay) -> np.ndarray:
     return filled
 
 
-_DEFAULT_SPEED = []
-
-
+@lru_cache(maxsize=1)
 def _default_speed() -> float:
-    if not _DEFAULT_SPEED:
-        _DEFAULT_SPEED.append(float(first_mode_speed(default_n_squared())))
-    return _DEFAULT_SPEED[0]
+    """c1 of :data:`DEFAULT_STRATIFICATION`, solved once per session."""
+    return float(first_mode_speed(default_n_squared()))
 
 
 def _travel_times(runs: _Runs, c1: np.ndarray):

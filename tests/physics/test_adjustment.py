@@ -138,6 +138,8 @@ def test_crossing_time_is_distance_over_long_wave_speed():
     adj = rossby_adjustment(sv, first_mode_speed=2.5)
     xr.testing.assert_identical(sv, before)
     for lat in (20.5, 30.5, 40.5):
+        # The waves start where the Sverdrup integral starts.
+        assert float(sv.eastern_coast_lon.sel(basin="basin_0", lat=lat)) == LON_EAST
         width = R * np.cos(np.deg2rad(lat)) * np.deg2rad(LON_EAST - LON_WEST)
         expected = width / long_wave_speed(lat, 2.5) / DAY
         assert float(adj.basin_crossing_time.sel(basin="basin_0", lat=lat)) == pytest.approx(
