@@ -450,3 +450,14 @@ def test_command_line_prints_crossing_times_and_adjusted_rows(tmp_path, capsys):
         assert ds.sverdrup_adjusted.attrs["flag_meanings"] == (
             "not_adjusted adjusted no_crossing_time")
         assert ds.basin_crossing_time.attrs["units"] == "days"
+
+
+def test_chunked_record_gives_the_same_response():
+    # Common practice (STYLE habit 7): the same numbers in memory and chunked. The march runs
+    # along the whole record, so a dask-backed record is computed when the model is called.
+    taux, tauy = box_record(lambda t: 1 + 0.3 * np.sin(2 * np.pi * t / YEAR), n_steps=25,
+                            step_days=365.25 / 12)
+    sv = sverdrup_transport(taux.mean("time"), tauy.mean("time"))
+    a = long_wave_response(taux, tauy, sv, first_mode_speed=2.5)
+    b = long_wave_response(taux.chunk(time=5), tauy.chunk(time=5), sv, first_mode_speed=2.5)
+    xr.testing.assert_identical(a, b)
