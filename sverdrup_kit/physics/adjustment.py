@@ -809,11 +809,12 @@ def long_wave_response(taux, tauy, sverdrup_result, *, first_mode_speed=None,
 
     because :math:`\nabla\cdot(H\mathbf u_g) = -(\beta g'H/f^2) h_x` (Anderson & Gill 1975;
     Meyers 1979; Gill 1982, section 12.4). The boundary condition is :math:`h = 0` at each
-    eastern coast (coastal Kelvin waves are taken as instantaneous). It is integrated exactly
+    eastern coast (coastal Kelvin waves are taken as instantaneous). It is integrated
     along its characteristics :math:`dx/dt = -c_R`: in the travel-time coordinate
     :math:`s(x) = \int_x^{x_E} dx'/c_R` the equation is :math:`h_t + h_s = -w_E - r h`, and the
     march steps along :math:`s` and :math:`t` together with equal steps :math:`\Delta`
-    (trapezoidal forcing, exact decay), from each eastern coast westward; :math:`\Delta`
+    (forcing constant in each cell, split at the faces, trapezoidal in time), from each
+    eastern coast westward; :math:`\Delta`
     divides the record step by a power of 2 chosen per run so that it is at most half of the
     shortest cell crossing.
 
@@ -1064,10 +1065,14 @@ def _march_runs(w, t, cells, faces, points, *, rate, period, initial, max_level=
     -----
     Slot m of a run sits at travel time :math:`s_m = m\Delta` and time step k at
     :math:`t_k = k\Delta`, so that the characteristic through slot m-1 at step k-1 reaches
-    slot m at step k: :math:`h_{m,k} = e^{-r\Delta} h_{m-1,k-1} - \frac{\Delta}{2}
-    (e^{-r\Delta} w_{m-1,k-1} + w_{m,k})`. The march goes along m (westward from the coast)
-    with all k at once. A periodic record wraps k; otherwise :math:`h_{m,0}` is the initial
-    state. Values between slots are interpolated linearly in s and in t.
+    slot m at step k: :math:`h_{m,k} = e^{-r\Delta} h_{m-1,k-1} - F_{m,k}`, with
+    :math:`F` the forcing integrated along that piece of characteristic: the forcing is
+    constant in each cell and linear in time, so the piece is split at the cell face it
+    crosses (if any) and each part integrated by the trapezoid rule in time, decayed from
+    its midpoint. The march goes along m (westward from the coast) with all k at once. A
+    periodic record wraps k; otherwise :math:`h_{m,0}` is the initial state. Values between
+    slots are interpolated linearly in s and in t, plus the difference between the piecewise
+    forcing and its mean over the interval (so a steady state is exact at every face).
     """
     n_t = t.size
     if period is None:
@@ -1141,12 +1146,18 @@ def _march_batch(batch, w, t, cells, faces, points, out, t_int, delta, rate, per
     forcing = _forcing_at(w, t, t_int, all_cells, period)  # (n_k, C)
     n_slots = np.array([int(math.floor(faces[r][-1] / delta)) + 2 for r in batch])
     m_max = int(n_slots.max())
-    # Column of the forcing felt at each slot: the cell holding s_m (the last cell beyond).
+    # Column of the forcing felt at each slot (the cell holding s_m; the last cell beyond), and
+    # the share of the step from slot m-1 to m spent in the cell of slot m-1 (1 when both
+    # slots lie in one cell; at most one face lies between two slots).
     col = np.empty((n_r, m_max), dtype=np.int64)
+    share = np.ones((n_r, m_max))
+    s = np.arange(m_max) * delta
     for i, r in enumerate(batch):
-        s = np.arange(m_max) * delta
         c = np.clip(np.searchsorted(faces[r], s, side="right") - 1, 0, cells[r].size - 1)
         col[i] = offsets[i] + c
+        moved = np.flatnonzero(c[1:] != c[:-1]) + 1
+        face = faces[r][c[moved - 1] + 1]
+        share[i, moved] = np.clip((face - s[moved - 1]) / delta, 0.0, 1.0)
     # Points to read, grouped by the slot interval [m-1, m] they fall in.
     pr, pi, pm, pa = [], [], [], []
     for i, r in enumerate(batch):
@@ -1163,27 +1174,47 @@ def _march_batch(batch, w, t, cells, faces, points, out, t_int, delta, rate, per
     bounds = np.searchsorted(pm, np.arange(m_max + 1))
     k0, k1, wt = _time_weights(t, t_int, delta, period)
     decay = math.exp(-rate * delta)
-    half = 0.5 * delta
     h = np.zeros((n_r, n_k))
     init = np.zeros(n_r)
     w_prev = forcing[:, col[:, 0]].T
     for m in range(1, m_max):
         w_cur = forcing[:, col[:, m]].T
+        f = share[:, m, None]
+        # Forcing integrated along the characteristic from (s_{m-1}, t_{k-1}) to (s_m, t_k):
+        # a share f of the step in the first cell, 1 - f in the second, each by the trapezoid
+        # rule in time and decayed from its midpoint.
+        d1 = np.exp(-rate * delta * (1.0 - 0.5 * f))
+        d2 = np.exp(-rate * delta * 0.5 * (1.0 - f))
+        if period is None:
+            p0, p1, c0, c1 = w_prev[:, :-1], w_prev[:, 1:], w_cur[:, :-1], w_cur[:, 1:]
+        else:
+            p0, p1 = np.roll(w_prev, 1, axis=1), w_prev
+            c0, c1 = np.roll(w_cur, 1, axis=1), w_cur
+        felt = 0.5 * delta * (f * (2.0 - f) * p0 + f * f * p1) * d1 \
+            + 0.5 * delta * (1.0 - f) * ((1.0 - f) * c0 + (1.0 + f) * c1) * d2
         new = np.empty_like(h)
         if period is None:
-            new[:, 1:] = decay * h[:, :-1] - half * (decay * w_prev[:, :-1] + w_cur[:, 1:])
+            new[:, 1:] = decay * h[:, :-1] - felt
             if initial == "steady":
-                init = decay * init - half * (decay * w_prev[:, 0] + w_cur[:, 0])
+                fs = f[:, 0]
+                init = decay * init - delta * (fs * w_prev[:, 0] * d1[:, 0]
+                                               + (1.0 - fs) * w_cur[:, 0] * d2[:, 0])
             new[:, 0] = init
         else:
-            new[:] = decay * np.roll(h, 1, axis=1) - half * (
-                decay * np.roll(w_prev, 1, axis=1) + w_cur)
+            new[:] = decay * np.roll(h, 1, axis=1) - felt
         lo, hi = bounds[m], bounds[m + 1]
         if hi > lo:
             rr, ii, aa = pr[lo:hi], pi[lo:hi], pa[lo:hi, None]
             a_t = (h[rr][:, k0] * (1.0 - wt) + h[rr][:, k1] * wt)
             b_t = (new[rr][:, k0] * (1.0 - wt) + new[rr][:, k1] * wt)
             vals = (1.0 - aa) * a_t + aa * b_t  # (n_sel, n_t)
+            # Linear interpolation in s assumes one forcing across the interval; where a face
+            # lies in it, put back the difference of the piecewise forcing (exact when steady).
+            fa = share[rr, m][:, None]
+            wp = w_prev[rr][:, k0] * (1.0 - wt) + w_prev[rr][:, k1] * wt
+            wc = w_cur[rr][:, k0] * (1.0 - wt) + w_cur[rr][:, k1] * wt
+            part = np.minimum(aa, fa) * wp + np.maximum(aa - fa, 0.0) * wc
+            vals -= delta * (part - aa * (fa * wp + (1.0 - fa) * wc))
             for i in np.unique(rr):
                 sel = rr == i
                 out[batch[i]][:, ii[sel]] = vals[sel].T
