@@ -153,7 +153,7 @@ def ocean_mask(source, like, *, variable: str | None = None, threshold: float = 
     ...                            "lon": np.arange(0, 360, 2.5)})
     >>> mask = ocean_mask("earth", winds)
     >>> round(float(mask.weighted(np.cos(np.deg2rad(mask.lat))).mean()), 2)
-    0.71
+    0.72
     """
     check_threshold(threshold, "threshold")
     frac = ocean_fraction(source, like, variable=variable, kind=kind, argname=argname)
