@@ -75,7 +75,8 @@ def resolve_ocean_mask(winds: xr.Dataset, ocean_mask=None, *, threshold: float =
     if isinstance(ocean_mask, xr.DataArray) and _same_grid(ocean_mask, winds):
         return ocean_mask, f"ocean_mask given on the wind grid ('{ocean_mask.name}')"
     mask = _masks.ocean_mask(ocean_mask, winds, threshold=threshold, variable=variable, kind=kind)
-    return mask, f"{mask.attrs['source']}; {mask.attrs['method']}"
+    return mask, (f"{mask.attrs['source']}; ocean where at least {threshold:g} of a wind cell "
+                  "is ocean")
 
 
 def _same_grid(mask: xr.DataArray, winds) -> bool:

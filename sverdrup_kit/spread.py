@@ -224,24 +224,26 @@ def transport_spread(
     transport = transport.transpose("product", "drag_law", "mean_speed", ...)
     transport.attrs = dict(template.attrs)
     units = transport.attrs.get("units", "1e6 m3 s-1")
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", RuntimeWarning)
-        tmin = transport.min(STATS_DIMS)
-        tmax = transport.max(STATS_DIMS)
-        stats = {
-            "transport_mean": (transport.mean(STATS_DIMS), "mean over products, drag laws "
-                               "and mean speeds"),
-            "transport_min": (tmin, "smallest (most southward) of the combinations"),
-            "transport_max": (tmax, "largest (most northward) of the combinations"),
-            "transport_range": (tmax - tmin, "range (max - min) over the combinations"),
-            "transport_std": (transport.std(STATS_DIMS), "standard deviation over the "
-                              "combinations (ddof=0)"),
-        }
+    # Written out so that rows with no value at all (land, the equatorial band) give NaN
+    # without the all-NaN warnings of nanmean/nanmin, which dask would raise at compute time.
+    count = transport.notnull().sum(STATS_DIMS)
+    has = count > 0
+    mean = transport.fillna(0.0).sum(STATS_DIMS) / count.where(has)
+    var = ((transport - mean) ** 2).fillna(0.0).sum(STATS_DIMS) / count.where(has)
+    tmin = transport.fillna(np.inf).min(STATS_DIMS).where(has)
+    tmax = transport.fillna(-np.inf).max(STATS_DIMS).where(has)
+    stats = {
+        "transport_mean": (mean, "mean over products, drag laws and mean speeds"),
+        "transport_min": (tmin, "smallest (most southward) of the combinations"),
+        "transport_max": (tmax, "largest (most northward) of the combinations"),
+        "transport_range": (tmax - tmin, "range (max - min) over the combinations"),
+        "transport_std": (np.sqrt(var), "standard deviation over the combinations (ddof=0)"),
+    }
     out = xr.Dataset({"interior_transport": transport})
     for key, (da, long_name) in stats.items():
         out[key] = da.assign_attrs(units=units, long_name=f"Sverdrup interior transport: "
                                    f"{long_name}")
-    out["transport_count"] = transport.notnull().sum(STATS_DIMS).assign_attrs(
+    out["transport_count"] = count.assign_attrs(
         long_name="number of combinations with a value", units="1")
     out["row_status"] = geometry
     ref_lay = grid_layout(ref, argname="reference")

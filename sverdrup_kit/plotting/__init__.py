@@ -8,5 +8,6 @@ from .figures import *  # noqa: F401,F403
 from .figures import __all__  # noqa: F401
 from .balance import plot_balance  # noqa: E402,F401
 from .model_grid import plot_model_vs_sverdrup  # noqa: E402,F401
+from .spread import plot_transport_spread  # noqa: E402,F401
 
 __all__ = [*__all__, "plot_balance", "plot_model_vs_sverdrup"]
