@@ -63,20 +63,26 @@ def resolve_ocean_mask(winds: xr.Dataset, ocean_mask=None, *, threshold: float =
     if ocean_mask is None:
         if _masks.is_global(winds) and fields and not _masks.has_missing(winds, fields):
             mask = _masks.ocean_mask("earth", winds, threshold=threshold)
-            return mask, (
+            mask.attrs["note"] = (
                 "the winds have no missing values on a global grid (winds over land), so the "
                 f"built-in Earth ocean mask was used (ocean fraction >= {threshold:g}, from the "
-                "ETOPO5 relief). Fix: pass ocean_mask='earth' to choose it and silence this, a "
-                "mask file of your own, or ocean_mask='data'."
+                "ETOPO5 relief)"
+            )
+            return mask, mask.attrs["note"] + (
+                ". Fix: pass ocean_mask='earth' to choose it and silence this, a mask file of "
+                "your own, or ocean_mask='data'."
             )
         return None, "land where the data are missing"
     if isinstance(ocean_mask, str) and ocean_mask.strip().lower() == "data":
         return None, "land where the data are missing"
     if isinstance(ocean_mask, xr.DataArray) and _same_grid(ocean_mask, winds):
-        return ocean_mask, f"ocean_mask given on the wind grid ('{ocean_mask.name}')"
+        # A mask made here earlier (the command line resolves it first) keeps its story.
+        return ocean_mask, str(ocean_mask.attrs.get(
+            "note", f"ocean_mask given on the wind grid ('{ocean_mask.name}')"))
     mask = _masks.ocean_mask(ocean_mask, winds, threshold=threshold, variable=variable, kind=kind)
-    return mask, (f"{mask.attrs['source']}; ocean where at least {threshold:g} of a wind cell "
-                  "is ocean")
+    mask.attrs["note"] = (f"{mask.attrs['source']}; ocean where at least {threshold:g} of a wind "
+                          "cell is ocean")
+    return mask, mask.attrs["note"]
 
 
 def _same_grid(mask: xr.DataArray, winds) -> bool:
