@@ -23,6 +23,10 @@ from .errors import (
     UnitsError,
 )
 from .io.readers import open_stress, open_winds
+from .io.masks import ocean_fraction, ocean_mask
+from .climatology import anomalies, climatology
+from .spread import spread_table, transport_spread
+from .errors import BuiltinOceanMaskWarning
 from .io.writers import write_netcdf
 from .ocean.hydrography import LinearEquationOfState, balance_check, geostrophic_transport
 from .ocean.observations import balance_section_observations, boundary_current_observations
@@ -45,6 +49,13 @@ from .pipeline import diagnose
 __version__ = "0.1.0"
 
 __all__ = [
+    "anomalies",
+    "BuiltinOceanMaskWarning",
+    "climatology",
+    "ocean_fraction",
+    "ocean_mask",
+    "spread_table",
+    "transport_spread",
     "AIR_DENSITY",
     "balance_check",
     "balance_section_observations",
