@@ -343,7 +343,10 @@ def _open_zarr(path, func) -> xr.Dataset:
             "package, which is not installed. Fix: pip install zarr."
         ) from err
     try:
-        return xr.open_dataset(os.fspath(path), engine="zarr", chunks={}, decode_times=False)
+        with warnings.catch_warnings():
+            # A store without consolidated metadata opens as well, only a little slower.
+            warnings.simplefilter("ignore", RuntimeWarning)
+            return xr.open_dataset(os.fspath(path), engine="zarr", chunks={}, decode_times=False)
     except (OSError, ValueError, KeyError) as err:
         raise ValueError(
             f"{func}: source: expected a Zarr store xarray can open, could not open "

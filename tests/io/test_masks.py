@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 import xarray as xr
 
-from data_recipes.earth_mask import ocean_fraction_from_relief, read_etopo5
+from data_recipes.earth_mask import read_etopo5
 from sverdrup_kit.errors import GridError, InputError
 from sverdrup_kit.geometry.regrid import area_weighted_average
 from sverdrup_kit.io.masks import ocean_fraction, ocean_mask
@@ -114,11 +114,3 @@ def test_builtin_mask_matches_the_recipe_relief_and_earths_ocean_area(etopo5):
     share = float(builtin.weighted(area).mean())
     assert abs(share - 0.708) <= 0.01 * 0.708
 
-
-@pytest.mark.realdata
-def test_recipe_recomputes_the_shipped_file_on_a_coarse_grid(etopo5):
-    """The recipe's own function on the cached relief gives what the package ships (4 degrees)."""
-    relief = read_etopo5(etopo5)
-    shipped = ocean_fraction("earth", grid(4.0))
-    remade = area_weighted_average(ocean_fraction_from_relief(relief), grid(4.0))
-    np.testing.assert_allclose(shipped.values, remade.values, atol=0.005)
