@@ -379,7 +379,8 @@ def _resolve_mask(args, winds, say):
                            .replace("ocean_mask_kind", "--ocean-mask-kind")
                            .replace("ocean_mask:", "--ocean-mask:")) from None
     if choice is None and mask is not None:
-        note = note.split(" Fix:")[0] + " (--ocean-mask FILE or data to choose another)"
+        note = (note.split(" Fix:")[0].rstrip(".")
+                + "; --ocean-mask FILE (or 'data') chooses another")
     say(f"ocean mask: {note}")
     return mask if mask is not None else "data"
 
