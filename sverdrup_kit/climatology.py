@@ -11,7 +11,7 @@ import xarray as xr
 
 from .errors import InputError
 
-__all__ = ["climatology", "anomalies", "SEASONS"]
+__all__ = ["SEASONS", "anomalies", "climatology"]
 
 #: Meteorological seasons in calendar order (December counted with the following winter).
 SEASONS = ("DJF", "MAM", "JJA", "SON")

@@ -24,7 +24,7 @@ from .ocean.observations import boundary_current_observations
 from .physics.ekman import DEFAULT_EQUATORIAL_HALF_WIDTH
 from .pipeline import _stress_from, diagnose, resolve_ocean_mask
 
-__all__ = ["transport_spread", "spread_table", "MEAN_SPEEDS"]
+__all__ = ["MEAN_SPEEDS", "spread_table", "transport_spread"]
 
 #: How the speed in the bulk formula is averaged: "vector" from the mean wind components,
 #: "scalar" from the product's mean wind speed (only where the product carries one).

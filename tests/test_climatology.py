@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import dask
 import numpy as np
-import pandas as pd
 import pytest
 import xarray as xr
 

@@ -25,7 +25,7 @@ from ..errors import GridError, InputError
 from ..geometry.coords import find_latlon, grid_layout
 from ..geometry.regrid import area_weighted_average, coverage
 
-__all__ = ["ocean_fraction", "ocean_mask", "MASK_KINDS", "EARTH_MASK_FILE"]
+__all__ = ["EARTH_MASK_FILE", "MASK_KINDS", "ocean_fraction", "ocean_mask"]
 
 EARTH_MASK_FILE = "earth_ocean_fraction.nc"
 EARTH = "earth"
