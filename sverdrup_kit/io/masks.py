@@ -9,7 +9,8 @@ its ocean fraction is at least ``threshold`` (half, by default).
 The built-in Earth mask (``source="earth"``) is a 0.25 degree ocean fraction shipped with the
 package (``sverdrup_kit/data/earth_ocean_fraction.nc``, 71 kB), made by
 ``data_recipes/earth_mask.py`` from the ETOPO5 relief (NOAA National Geophysical Data Center
-1988, public domain); it needs no network and no download.
+1988, public domain); it needs no network and no download. On wind grids finer than 0.25 degree
+its coastline is that of the 0.25 degree cells: pass a finer relief for those.
 """
 
 from __future__ import annotations
