@@ -7,6 +7,8 @@ Run ``python -m data_recipes.marine_climatology`` to fetch, verify and cache
 - ``levitus_ts``: annual temperature and salinity, 1 degree, 20 levels
   (Levitus 1982, NOAA Prof. Paper 13);
 - ``etopo60``: global relief at 60 minutes;
+- ``etopo5``: global relief at 5 minutes (ETOPO5; source of the built-in Earth ocean mask, see
+  ``data_recipes/earth_mask.py``);
 - ``navy_monthly_winds``: monthly surface winds on a 2.5 degree grid, 132 months.
 
 Each is cached under our own plain name with the ``.nc`` suffix (``coads_monthly.nc``, ...);
@@ -62,6 +64,12 @@ FILES = {
         {"ETOPO60X": 360, "ETOPO60Y": 180},
         ("ROSE",),
         "36b4cb72a01cf4c6dc155e52dca6c4ff148aea5958d056d3136fe2789646c4ad",
+    ),
+    "etopo5": FileSpec(
+        "etopo5.cdf",
+        {"ETOPO05_X": 4320, "ETOPO05_Y": 2161},
+        ("ROSE",),
+        "1455d5e5feebd183d0bef5538a750ca8a44801e1503f964df900831c224459ce",
     ),
     "navy_monthly_winds": FileSpec(
         "monthly_navy_winds.cdf",

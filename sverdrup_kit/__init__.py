@@ -23,6 +23,10 @@ from .errors import (
     UnitsError,
 )
 from .io.readers import open_stress, open_winds
+from .io.masks import ocean_fraction, ocean_mask
+from .climatology import anomalies, climatology
+from .spread import spread_table, transport_spread
+from .errors import BuiltinOceanMaskWarning
 from .io.writers import write_netcdf
 from .ocean.hydrography import LinearEquationOfState, balance_check, geostrophic_transport
 from .ocean.observations import balance_section_observations, boundary_current_observations
@@ -59,6 +63,13 @@ __all__ = [
     "first_mode_speed_from_ts",
     "long_wave_response",
     "rossby_adjustment",
+    "anomalies",
+    "BuiltinOceanMaskWarning",
+    "climatology",
+    "ocean_fraction",
+    "ocean_mask",
+    "spread_table",
+    "transport_spread",
     "AIR_DENSITY",
     "balance_check",
     "balance_section_observations",
