@@ -26,6 +26,13 @@ def _band_reason(band: float) -> str:
     )
 
 
+def _bare(da: xr.DataArray) -> xr.DataArray:
+    """``da`` without the attributes it inherited from the stress (its drag law, cell_methods)."""
+    out = da.copy(deep=False)
+    out.attrs = {}
+    return out
+
+
 def ekman(
     taux,
     tauy,
@@ -95,10 +102,13 @@ def ekman(
     tx = to_si(taux, "stress", argname="taux", default="Pa").astype(np.float64)
     ty = to_si(tauy, "stress", argname="tauy", default="Pa").astype(np.float64)
 
-    lat = taux[lay.lat_name].astype(np.float64)
+    # A bare copy of the latitudes: the coordinate's attributes (axis, units) must not reach
+    # the transports through the arithmetic.
+    lat = xr.DataArray(taux[lay.lat_name].values.astype(np.float64), dims=(lay.lat_name,),
+                       coords={lay.lat_name: taux[lay.lat_name]})
     f = (2.0 * omega * np.sin(np.deg2rad(lat))).where(np.abs(lat) >= equatorial_half_width)
-    ue = ty / (rho0 * f)
-    ve = -tx / (rho0 * f)
+    ue = _bare(ty / (rho0 * f))
+    ve = _bare(-tx / (rho0 * f))
     pump = curl_on_sphere(tx / (rho0 * f), ty / (rho0 * f), grid=grid, names=("taux", "tauy"))
     reason = _band_reason(equatorial_half_width)
     common = dict(rho0=rho0, equatorial_half_width=equatorial_half_width, comment=reason)
