@@ -42,9 +42,25 @@ def _prepare(ds: xr.Dataset) -> xr.Dataset:
     out.attrs = {k: (int(v) if isinstance(v, (bool, np.bool_)) else v)
                  for k, v in ds.attrs.items() if v is not None}
     out.attrs.update(Conventions="CF-1.8", history=history, purpose=PURPOSE)
+    # CF-1.8 section 2.6.2 asks for a title; name what the file holds when the caller gave none.
+    out.attrs.setdefault("title", "sverdrup_kit results: " + ", ".join(map(str, out.data_vars)))
     for name in list(out.data_vars):
         out[name] = out[name].transpose(*_cf_dimension_order(out, out[name].dims))
-    return out
+    return _labels_as_auxiliary(out)
+
+
+def _labels_as_auxiliary(ds: xr.Dataset) -> xr.Dataset:
+    """Text labels of a dimension (basin names) as an auxiliary coordinate ``<dim>_name``.
+
+    CF-1.8 (section 1.3) defines coordinate variables as numeric; labels belong in an
+    auxiliary coordinate variable (section 6.1). Read back, ``ds.swap_dims(basin="basin_name")``
+    selects by name again.
+    """
+    renames = {}
+    for dim in ds.dims:
+        if dim in ds.coords and ds[dim].dtype.kind in "OUS" and f"{dim}_name" not in ds.variables:
+            renames[dim] = f"{dim}_name"
+    return ds.rename_vars(renames) if renames else ds
 
 
 def _as_int32(var: xr.DataArray, name: str) -> xr.DataArray:
@@ -128,6 +144,10 @@ def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = Tru
     for name in out.dims:
         if name in out.coords:
             encoding.setdefault(name, {})["_FillValue"] = None
+    for name, var in out.variables.items():
+        if np.issubdtype(var.dtype, np.datetime64):
+            # xarray would store whole-day times as int64, which CF-1.8 (section 2.2) lacks.
+            encoding.setdefault(name, {})["dtype"] = "float64"
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
     os.close(fd)
     try:

@@ -560,8 +560,10 @@ _ATTRS = {
 def _island_variable(values) -> xr.DataArray:
     """The constant of each island (1e6 m3 s-1) along ``island``, numbered as in land_mass."""
     n = values.shape[-1]
+    number = xr.DataArray(np.arange(1, n + 1, dtype=np.int32), dims="island",
+                          attrs={"long_name": "island number (the land_mass value)"})
     return xr.DataArray(values, dims=values.dims if isinstance(values, xr.DataArray) else
-                        ("island",)).assign_coords(island=np.arange(1, n + 1)).assign_attrs(
+                        ("island",)).assign_coords(island=number).assign_attrs(
         long_name="streamfunction on each island", units="1e6 m3 s-1",
         comment="island k is land_mass k; an island in the land beyond a grid edge that stops "
         "short of a pole (an all-ocean last row) has no point on the grid")
@@ -691,8 +693,10 @@ def solve_basin(
     island_forcing, how = _island_forcing_mixed(op, c, ocean, rho0, stress)
     psi, island_psi = op.solve_with_islands(np.where(ocean, c, 0.0) / rho0, island_forcing)
     coords = {
-        "y": ("y", y, dict(units="m", long_name="northward distance", axis="Y")),
-        "x": ("x", x, dict(units="m", long_name="eastward distance", axis="X")),
+        # No axis attribute: CF-aware readers take axis X/Y without a grid mapping for
+        # longitude/latitude, which distances in a basin are not.
+        "y": ("y", y, dict(units="m", long_name="northward distance")),
+        "x": ("x", x, dict(units="m", long_name="eastward distance")),
     }
     beta2d = np.broadcast_to(betas[:, None], c.shape)
     curl_si = np.where(ocean, c, np.nan)
@@ -1161,14 +1165,16 @@ def boundary_current(
     row = dims[0]
     coords = {row: solution[row]}
     units = solution[dims[1]].attrs.get("units", "")
+    # On the sphere the coast positions are longitudes; say so (CF-1.8 section 4.2).
+    where = {"standard_name": "longitude"} if units == "degrees_east" else {}
     ds = xr.Dataset(
         {
             "western_coast": (row, out["western_coast"],
                               dict(long_name="position of the western coast (wall point)",
-                                   units=units)),
+                                   units=units, **where)),
             "eastern_coast": (row, out["eastern_coast"],
                               dict(long_name="position of the eastern coast (wall point)",
-                                   units=units)),
+                                   units=units, **where)),
             "peak_northward_velocity": (row, out["peak_northward_velocity"],
                                         dict(long_name="peak depth-mean northward velocity of "
                                              "the western boundary current", units="m s-1")),
