@@ -36,7 +36,8 @@ def errors(num, exact, delta):
 
 
 def test_stommel_numerical_matches_closed_form_and_converges():
-    # Stommel (1948) exact solution (REFERENCES.md): within 1% on a modest grid (delta_S = 50 km
+    # Stommel (1948), Trans. AGU 29, 202-206, exact solution: within 1% on a modest grid
+    # (delta_S = 50 km
     # spanning 5 points), and the error falls about fourfold per halving (second order).
     res = []
     for nx, ny in ((101, 21), (201, 41), (401, 81)):
@@ -72,7 +73,8 @@ def munk_case(nx, boundary, *, A_H=1e3, beta=2e-11):
 
 @pytest.mark.parametrize("nx", [251, 501])
 def test_munk_no_slip_peak_and_reversal_within_a_grid_cell(nx):
-    # REFERENCES.md (derived): northward flow peaks at 1.209 delta_M and first reverses at
+    # Derived from Munk (1950), J. Meteor. 7, 79-93: northward flow peaks at 1.209 delta_M
+    # and first reverses at
     # 3.628 delta_M for a no-slip wall.
     x, num = munk_case(nx, "no-slip")
     d = float(munk_width(1e3, 2e-11))
@@ -129,9 +131,10 @@ def sector(d=0.5, lon0=-80.0):
 
 @pytest.mark.parametrize("A_H", [8e3, 4e3])
 def test_sphere_munk_interior_is_sverdrup_and_boundary_returns_it(A_H):
-    # Sverdrup balance in the interior of a spherical basin with Munk friction (Munk 1950), and
-    # REFERENCES.md: "the boundary current carries the Sverdrup interior transport back,
-    # whatever the friction". Tolerance 2%: the thin no-slip eastern layer takes about 1%.
+    # Sverdrup balance in the interior of a spherical basin with Munk friction (Munk 1950, J.
+    # Meteor. 7, 79-93), and the boundary current carries the Sverdrup interior transport
+    # back, whatever the friction (Stommel 1948; Munk 1950). Tolerance 2%: the thin no-slip
+    # eastern layer takes about 1%.
     out = solve_barotropic(sector(), A_H=A_H)
     bc = boundary_current(out).sel(lat=slice(25, 35))
     np.testing.assert_allclose(bc.interior_ratio, 1.0, atol=0.02)
@@ -187,7 +190,7 @@ def test_southern_hemisphere_gyre_closes_too():
 
 def test_three_classic_cases_symmetry_and_western_intensification():
     # Stommel (1948) cases: no rotation and uniform rotation give the same symmetric gyre;
-    # beta intensifies it in the west with e-folding width close to r/beta (REFERENCES.md:
+    # beta intensifies it in the west with e-folding width close to r/beta (Stommel 1948:
     # delta_S = r/beta; the closed form gives 1/|A| = 0.95 delta_S for these numbers).
     x = np.linspace(0, 2e6, 201)
     y = np.linspace(0, 2e6, 41)
@@ -255,7 +258,8 @@ def test_island_constant_and_kelvin_circulation(beta, r, tol):
 
 @pytest.mark.parametrize("box", [(0.96e6, 1.0e6, 0.7e6, 1.3e6), (0.5e6, 0.6e6, 0.5e6, 1.5e6)])
 def test_thin_island_follows_godfreys_island_rule(box):
-    # Godfrey (1989), GAFD 45 (REFERENCES.md, memory for the path; signs derived here): with
+    # Godfrey (1989), Geophys. Astrophys. Fluid Dyn. 45, 89-112 (from memory for the path;
+    # signs derived here): with
     # weak bottom friction, psi_island = circ(tau)/(rho0 (f_N - f_S)) on the path east along
     # the island's northern tip to the eastern wall, south, and back west along its southern
     # tip; for tau_x(y) only: (L - x_e)(tau_x(y_N) - tau_x(y_S)) / (rho0 beta (y_N - y_S)).
@@ -353,7 +357,8 @@ def test_wind_stress_round_the_island_matches_the_curl_over_it():
 
 
 def test_rotation_options():
-    # REFERENCES.md: beta at 30N = 1.9825e-11 m-1 s-1; the beta-plane uses it throughout, the
+    # Derived: beta at 30N = 2 Omega cos(30N)/R = 1.9825e-11 m-1 s-1 (Omega, Groten 2004;
+    # R = 6.371e6 m); the beta-plane uses it throughout, the
     # f-plane and the non-rotating basin have no beta and the same streamfunction (flat bottom).
     da = sector(d=1.0)
     bp = solve_barotropic(da, r=4e-6, rotation="beta-plane", reference_latitude=30.0)

@@ -108,7 +108,8 @@ def test_closed_basin_matches_the_sverdrup_relation_within_one_percent():
 
 
 def test_reference_value_sverdrup_transport_at_30n():
-    # REFERENCES.md: curl = 1e-7 N/m3 at 30N gives 4.92 m2/s, about 24.6 Sv per 5000 km.
+    # Derived from Sverdrup (1947), PNAS 33, 318-326, V = curl/(rho0 beta): curl = 1e-7 N/m3
+    # at 30N gives 4.92 m2/s, about 24.6 Sv per 5000 km.
     # A field tau_y = a * lambda has curl a / (R cos phi) and tau_x = 0.
     lat = np.arange(20.0, 40.1, 1.0)
     lon = np.arange(0.5, 60, 1.0)
@@ -555,7 +556,9 @@ def test_coads_sverdrup_transport_in_the_northern_subtropical_gyres(marine_clima
     pac = ds.interior_transport.sel(basin="pacific")
     # 26.5N lies between the 25N and 27N rows of the 2 degree grid: interpolate linearly.
     atl_26 = float(atl.interp(lat=26.5))
-    # REFERENCES.md: RAPID 26.5N upper mid-ocean -18.1 Sv, and the wind-driven part of the
+    # RAPID array 26.5N 2004-22 means (RAPID-MOCHA public time series): upper mid-ocean
+    # -18.1 Sv; Schmitz & Richardson (1991), Deep-Sea Res. 38: about 13 Sv of the Florida
+    # Current is overturning return flow, so the wind-driven part of the
     # Florida Current 31.3 - ~13 = ~18 Sv. The Sverdrup interior should be southward and of
     # that size. Tolerance +-50% (9 to 27 Sv): monthly-mean winds underestimate the stress by
     # up to ~20% (Rosen & Ponte 2003), an effective Cd is good to ~10% (Trenberth et al.
@@ -563,12 +566,13 @@ def test_coads_sverdrup_transport_in_the_northern_subtropical_gyres(marine_clima
     # the curl near the coasts. Measured: -13.6 Sv (vector mean), -16.6 Sv (scalar speed).
     assert -27.0 < atl_26 < -9.0
     # The North Pacific subtropical gyre carries more than the Atlantic's (memory; Kuroshio
-    # 42 Sv net vs Florida Current 31 Sv, REFERENCES.md). Measured at 25-29N: -21.4 vs
+    # 42 Sv net, Imawaki et al. 2001, GRL; Florida Current 31 Sv, RAPID/Florida Current cable).
+    # Measured at 25-29N: -21.4 vs
     # -13.0 Sv (vector mean), -29.2 vs -16.6 Sv (scalar speed).
     rows = [25.0, 27.0, 29.0]
     assert float(pac.sel(lat=rows).mean()) < float(atl.sel(lat=rows).mean()) < 0
     assert float(pac.sel(lat=rows).mean()) < -15.0
-    # REFERENCES.md (memory): the subtropical/subpolar zero lies roughly between 40N and 55N
+    # Common practice, from memory: the subtropical/subpolar zero lies roughly between 40N and 55N
     # in both northern basins; wide tolerance. Measured: 49.8N and 43.7N (vector mean),
     # 49.7N and 43.4N (scalar speed).
     lat = ds.lat.values
@@ -590,7 +594,7 @@ def test_coads_sverdrup_transport_in_the_northern_subtropical_gyres(marine_clima
 @pytest.mark.slow
 def test_coads_scalar_speed_stress_drives_a_stronger_gyre(marine_climatology, etopo60):
     # Stress is quadratic in the wind, so the stress of monthly vector-mean winds
-    # underestimates it (REFERENCES.md: up to about 20%, Rosen & Ponte 2003); the scalar mean
+    # underestimates it (up to about 20%, Rosen & Ponte 2003, J. Climate); the scalar mean
     # speed restores part of it and the subtropical interior transport grows.
     vec = _coads_sverdrup(marine_climatology, etopo60, use_wind_speed=False)
     spd = _coads_sverdrup(marine_climatology, etopo60, use_wind_speed=True)
