@@ -14,15 +14,18 @@ from .operators import curl_on_sphere
 
 __all__ = ["ekman", "DEFAULT_EQUATORIAL_HALF_WIDTH"]
 
-#: Half-width in degrees of the band around the equator where f -> 0 and the Ekman (and
-#: Sverdrup) balances are not used (common practice: 2 to 5 degrees).
+#: Half-width in degrees of the band around the equator left empty (common practice: 2 to 5
+#: degrees). The Ekman transport goes as 1/f there; the Sverdrup V = curl/(rho0 beta) stays
+#: finite, but its split into Ekman and geostrophic parts does not, and equatorial dynamics
+#: (undercurrents, nonlinearity, friction) break the balance.
 DEFAULT_EQUATORIAL_HALF_WIDTH = 3.0
 
 
 def _band_reason(band: float) -> str:
     return (
-        f"missing within {band:g} degrees of the equator, where f -> 0 and the Ekman balance "
-        "does not hold"
+        f"missing within {band:g} degrees of the equator, where the Ekman transport, which "
+        "goes as 1/f, has no meaning and equatorial dynamics (undercurrents, nonlinearity, "
+        "friction) take over"
     )
 
 

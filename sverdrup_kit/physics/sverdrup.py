@@ -141,8 +141,11 @@ def sverdrup_transport(
     rho0 : float, optional
         Reference sea-water density, kg m-3.
     equatorial_half_width : float, optional
-        Half-width in degrees of the band around the equator left empty (f -> 0), the same
-        default as :func:`~sverdrup_kit.physics.ekman.ekman`.
+        Half-width in degrees of the band around the equator left empty, the same default as
+        :func:`~sverdrup_kit.physics.ekman.ekman`. V itself has no f and stays finite there;
+        the band is left out because the split into Ekman and geostrophic parts (both as
+        1/f) fails and equatorial dynamics (undercurrents, nonlinearity, friction) break the
+        balance.
     island_min_area_km2 : float, optional
         km2. Land bodies smaller than this are *small islands*: the integral runs across them
         with the stress filled in from the surrounding ocean (nearest-ocean averaging), so
