@@ -8,6 +8,8 @@ fill, the curl (:func:`~sverdrup_kit.physics.operators.curl_on_sphere`) and the 
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 import xarray as xr
 
@@ -326,13 +328,34 @@ def sverdrup_transport(
         kwargs=dict(lat=grid.lat, valid=plan.row_status == 0, max_gyre_boundaries=max_gyre_boundaries),
     )
 
-    ds = _assemble(
-        curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
-        taux, rho0=rho0, band=equatorial_half_width, island_min_area_km2=island_min_area_km2,
-        continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km, fill_gaps=fill_gaps,
-        given_mask=ocean_mask is not None,
-    )
-    return ds
+    settings = _Settings(rho0, equatorial_half_width, island_min_area_km2, continent_min_area_km2,
+                         min_width_km, fill_gaps, given_mask=ocean_mask is not None)
+    fields = dict(curl=curl, v=v, psi=psi, transport=transport, crossings=crossings, count=count)
+    return _assemble(fields, plan, bid, names, lay, taux, settings)
+
+
+@dataclass(frozen=True)
+class _Settings:
+    """The options of one call, recorded in the result's attributes."""
+
+    rho0: float
+    equatorial_half_width: float
+    island_min_area_km2: float
+    continent_min_area_km2: float
+    min_width_km: float
+    fill_gaps: bool
+    given_mask: bool
+
+    def attrs(self) -> dict:
+        return dict(
+            rho0=self.rho0,
+            equatorial_half_width=self.equatorial_half_width,
+            island_min_area_km2=self.island_min_area_km2,
+            continent_min_area_km2=self.continent_min_area_km2,
+            min_width_km=self.min_width_km,
+            fill_gaps=int(bool(self.fill_gaps)),
+            land_mask_from="ocean_mask argument" if self.given_mask else "missing stress values",
+        )
 
 
 def _flag_attrs(table):
@@ -351,9 +374,12 @@ def _to_user_lon(x, original_lon):
     return np.where(np.isfinite(x), base + np.mod(x - base, 360.0), np.nan)
 
 
-def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
-              original, *, rho0, band, island_min_area_km2, continent_min_area_km2, min_width_km,
-              fill_gaps, given_mask):
+def _assemble(fields, plan, bid, names, lay, original, settings: _Settings):
+    """The result Dataset from the computed ``fields`` (curl, v, psi, transport, crossings,
+    count) and the row plan, on the user's grid and order (``original``'s)."""
+    curl, v, psi = fields["curl"], fields["v"], fields["psi"]
+    transport, crossings, count = fields["transport"], fields["crossings"], fields["count"]
+    band = settings.equatorial_half_width
     lat, lon = lay.lat_name, lay.lon_name
     hw = (lat, lon)
     basin = xr.DataArray(np.array(names, dtype=object), dims=("basin",), name="basin",
@@ -430,13 +456,7 @@ def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid,
     )
     ds = from_canonical(ds, lay, original)
     ds.attrs.update(
-        rho0=rho0,
-        equatorial_half_width=band,
-        island_min_area_km2=island_min_area_km2,
-        continent_min_area_km2=continent_min_area_km2,
-        min_width_km=min_width_km,
-        fill_gaps=int(bool(fill_gaps)),
-        land_mask_from="ocean_mask argument" if given_mask else "missing stress values",
+        settings.attrs(),
         small_islands="integrated across, with stress filled by nearest-ocean averaging",
         marginal_seas="runs cut off from the widest run of a basin row by a continent are not "
         "counted (integration_class 2)",
