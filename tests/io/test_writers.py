@@ -125,3 +125,29 @@ def test_labels_become_an_auxiliary_coordinate_and_integers_32_bit(tmp_path):
         for b in ds.basin.values:
             np.testing.assert_array_equal(named.interior_transport.sel(basin_name=b),
                                           ds.interior_transport.sel(basin=b).transpose("time", "lat"))
+
+
+def test_hydrographic_results_pass_the_cf_1_8_compliance_checker(tmp_path, monkeypatch):
+    # The IOOS compliance checker's cf:1.8 suite, offline, on balance_check and
+    # geostrophic_transport results written by write_netcdf; inputs carry the coordinate
+    # attributes a CF file gives them.
+    from sverdrup_kit import balance_check
+
+    from ..ocean.test_hydrography import EOS, TS_LON, fake_sverdrup, make_ts
+
+    cf = {"lat": {"standard_name": "latitude", "units": "degrees_north"},
+          "lon": {"standard_name": "longitude", "units": "degrees_east"}}
+
+    def described(da):
+        for name, attrs in cf.items():
+            da = da.assign_coords({name: da[name].assign_attrs(attrs)})
+        return da
+
+    temp, salt = (described(a) for a in make_ts())
+    sv = fake_sverdrup(v_value=-5.0, v_west_of=320.0)
+    sv = sv.assign_coords({name: sv[name].assign_attrs(attrs) for name, attrs in cf.items()})
+    taux = xr.full_like(sv.sverdrup_northward_transport, -0.08).assign_attrs(units="Pa")
+    out = balance_check(sv, temp, salt, taux, reference_pressure=1500.0,
+                        western_limit=TS_LON[0], equation_of_state=EOS)
+    path = write_netcdf(out, tmp_path / "balance.nc")
+    assert cf_problems(path, monkeypatch) == []
