@@ -1,4 +1,4 @@
-"""Run the CF-1.8 check of the general-purpose IOOS compliance checker on a file, offline.
+"""Run a CF check (cf:1.8 unless told) of the general-purpose IOOS compliance checker on a file, offline.
 
 The checker (PyPI ``compliance-checker``) ships its CF standard-name table; it reaches the
 network only for a table version named in ``standard_name_vocabulary``, for remote paths and
@@ -11,7 +11,7 @@ import socket
 import pytest
 
 
-def cf_problems(path, monkeypatch):
+def cf_problems(path, monkeypatch, suite="cf:1.8"):
     """Errors and warnings (failed checks of high or medium weight) and checker exceptions."""
     suite_mod = pytest.importorskip("compliance_checker.suite")
 
@@ -21,9 +21,9 @@ def cf_problems(path, monkeypatch):
     monkeypatch.setattr(socket.socket, "connect", no_network)
     monkeypatch.setattr(socket, "create_connection", no_network)
     suite_mod.CheckSuite.load_all_available_checkers()
-    suite = suite_mod.CheckSuite()
-    ds = suite.load_dataset(str(path))
-    groups, crashed = suite.run_all(ds, ["cf:1.8"])["cf:1.8"]
+    checker = suite_mod.CheckSuite()
+    ds = checker.load_dataset(str(path))
+    groups, crashed = checker.run_all(ds, [suite])[suite]
     ds.close()
     problems = [f"{r.name}: {'; '.join(r.msgs)}" for r in groups
                 if r.weight >= 2 and r.value[0] != r.value[1]]
