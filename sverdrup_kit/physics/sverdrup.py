@@ -442,12 +442,12 @@ def _assemble(fields, plan, bid, names, lay, original, settings: _Settings):
             }),
             "eastern_coast_lon": (("basin", lat), _to_user_lon(plan.east_lon, user_lon), {
                 "long_name": "longitude of the eastern coast where the integral starts",
-                "units": "degrees_east",
+                "units": "degrees_east", "standard_name": "longitude",
                 "comment": "cell face; NaN where the row has no eastern coast or no ocean",
             }),
             "western_coast_lon": (("basin", lat), _to_user_lon(plan.west_lon, user_lon), {
                 "long_name": "longitude of the western boundary where the integral ends",
-                "units": "degrees_east",
+                "units": "degrees_east", "standard_name": "longitude",
                 "comment": "cell face; where a row is split by large islands, the western face "
                 "of its westernmost run",
             }),

@@ -79,6 +79,17 @@ def small_world(times=2):
     return taux, (0 * taux).assign_attrs(units="Pa")
 
 
+def rotated_pole_stress():
+    """An invented gyre basin on a 2 degree rotated-pole model grid (2-D lat and lon)."""
+    from sverdrup_kit.synthetic_grids import as_field, rotated_pole_grid
+
+    lat, lon, _, _ = rotated_pole_grid(2.0, pole_lat=60.0, pole_lon=200.0)
+    ocean = (np.mod(lon, 360) > 0.5) & (np.mod(lon, 360) < 60) & (lat > 15) & (lat < 55)
+    taux = as_field(np.where(ocean, -0.1 * np.cos(np.deg2rad(4.5 * (lat - 15))), np.nan),
+                    lat, lon)
+    return taux, 0 * taux
+
+
 def test_every_result_passes_the_cf_1_8_compliance_checker(tmp_path, monkeypatch):
     # The IOOS compliance checker's cf:1.8 suite (general-purpose reference tool), offline: no
     # errors and no warnings for each kind of result the toolkit returns, written by
@@ -103,6 +114,7 @@ def test_every_result_passes_the_cf_1_8_compliance_checker(tmp_path, monkeypatch
         "basin": solve_basin(x, x, c, r=1e-6, beta=2e-11),
         "stommel": stommel_basin(x, x, r=1e-6, beta=2e-11),
         "observations": boundary_current_observations(),
+        "model_grid": sverdrup_transport(*rotated_pole_stress()),
     }
     assert solution.attrs["n_islands"] >= 1
     for name, ds in results.items():
