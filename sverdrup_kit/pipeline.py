@@ -210,11 +210,14 @@ def diagnose(
     if has_time:
         # Land is where every time step is missing; a cell observed in some months only (a
         # ship-based climatology's gaps) is averaged over the months it has.
+        # No cell_methods "time: mean": CF-1.8 (section 7.3) wants its name to be a dimension or
+        # a scalar coordinate of the variable, and the mean has neither (the file's time
+        # dimension belongs to interior_transport_by_time). The comment says it in words.
         for name in ("taux", "tauy"):
-            mean[name].attrs["cell_methods"] = "time: mean"
+            mean[name].attrs.pop("cell_methods", None)
             mean[name].attrs["comment"] = (
-                "mean over the time steps with data; cells missing in some steps are averaged "
-                "over the steps they have"
+                f"mean over the {stress.sizes['time']} time steps of the input, each with data; "
+                "cells missing in some steps are averaged over the steps they have"
             )
     sv = sverdrup_transport(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
                   equatorial_half_width=equatorial_half_width)

@@ -473,8 +473,10 @@ def assign_basins(basins, water, grid, layout, ref, cls, land_labels, *, min_are
 #: row_status values and their meanings (CF flag_values / flag_meanings).
 ROW_STATUS = {
     0: ("valid", "interior transport computed"),
-    1: ("equatorial_band", "within the equatorial band, where f -> 0 and the Sverdrup balance "
-        "does not hold"),
+    1: ("equatorial_band", "within the equatorial band, where V = curl/(rho0 beta) stays "
+        "finite but the Ekman and geostrophic parts (both as 1/f) lose their meaning and "
+        "equatorial dynamics (undercurrents, nonlinearity, friction) break the Sverdrup "
+        "balance"),
     2: ("no_eastern_coast", "the basin's ocean in this row has no eastern coast: it wraps all "
         "the way round (a circumpolar band), or its eastern end is open to another basin or "
         "the edge of the grid"),

@@ -92,7 +92,10 @@ _SVERDRUP_UNITS = {"1e6 m3 s-1": 1.0, "1e6 m3/s": 1.0, "sverdrup": 1.0, "sverdru
 #: How each row_status meaning is named on figures and how its region is shaded: hatching on a
 #: pale neutral ground, so that it cannot be mistaken for a value of a diverging colour map.
 _REASONS = {
-    "equatorial_band": _Shade("equatorial band (f \u2192 0)", "#ececec", "...."),
+    # V = curl/(rho0 beta) stays finite at the equator; the Ekman part (1/f) and equatorial
+    # dynamics are what fail there.
+    "equatorial_band": _Shade("equatorial band (Ekman ~ 1/f, equatorial dynamics)", "#ececec",
+                              "...."),
     "no_eastern_coast": _Shade("no eastern coast", "#ececec", "\\\\\\"),
     "too_narrow": _Shade("basin too narrow", "#ececec", "xxxx"),
     "outside": _Shade("outside the basins", "#f7f7f7", "||||"),
@@ -623,7 +626,7 @@ def map_field(
     title, label : str, optional
         Axes title; colour-bar label (default: long_name and units of ``data``).
     missing_label : str, optional
-        Legend name of ocean cells without data (e.g. "equatorial band (f → 0)").
+        Legend name of ocean cells without data (e.g. "no eastern coast").
     to_per_year : bool
         Show a velocity in m s-1 as m yr-1.
 
