@@ -27,7 +27,7 @@ from .io.masks import ocean_fraction, ocean_mask
 from .climatology import anomalies, climatology
 from .spread import spread_table, transport_spread
 from .errors import BuiltinOceanMaskWarning
-from .io.writers import write_netcdf
+from .io.writers import open_results, write_netcdf
 from .ocean.hydrography import LinearEquationOfState, balance_check, geostrophic_transport
 from .ocean.observations import balance_section_observations, boundary_current_observations
 from .physics.adjustment import (
@@ -97,6 +97,7 @@ __all__ = [
     "munk_peak_distance",
     "munk_width",
     "OMEGA",
+    "open_results",
     "open_stress",
     "open_winds",
     "RHO0",

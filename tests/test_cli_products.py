@@ -8,6 +8,8 @@ import numpy as np
 import pytest
 import xarray as xr
 
+import sverdrup_kit as sk
+
 from sverdrup_kit.cli import main
 
 
@@ -32,7 +34,7 @@ def test_global_winds_over_land_in_two_files_need_no_option(navy_split, tmp_path
     captured = capsys.readouterr()
     assert code == 0, captured.err
     assert "ocean mask: the winds have no missing values" in captured.out
-    with xr.open_dataset(out / "results.nc") as res:
+    with sk.open_results(out / "results.nc") as res:
         assert "built-in Earth ocean mask" in res.attrs["ocean_mask"]
         atl = res.interior_transport.sel(basin="atlantic").sel(lat=26.5, method="nearest")
         # southward interior flow of 10-25 Sv at 26.5N (common practice for climatological

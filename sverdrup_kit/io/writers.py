@@ -10,7 +10,7 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
-__all__ = ["write_netcdf", "PURPOSE"]
+__all__ = ["write_netcdf", "open_results", "PURPOSE"]
 
 #: What the results are for, written into every file.
 PURPOSE = (
@@ -162,3 +162,25 @@ def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = Tru
             os.remove(tmp)
         raise
     return path
+
+
+def open_results(path: str | os.PathLike, **kwargs) -> xr.Dataset:
+    """Open a results file written by :func:`write_netcdf` with its labels back in place.
+
+    On disk, text labels of a dimension (basin names) are the auxiliary coordinate
+    ``<dim>_name`` (CF coordinate variables are numeric); here they become the dimension's
+    coordinate again, so that ``ds.interior_transport.sel(basin="atlantic")`` works as on the
+    result that was written. Other keyword arguments go to :func:`xarray.open_dataset`.
+
+    Examples
+    --------
+    >>> ds = open_results("results.nc")  # doctest: +SKIP
+    >>> ds.interior_transport.sel(basin="atlantic").sel(lat=26.5, method="nearest")  # doctest: +SKIP
+    """
+    ds = xr.open_dataset(path, **kwargs)
+    for name in list(ds.coords):
+        dim = name[:-5] if name.endswith("_name") else None
+        if dim and ds[name].dims == (dim,) and dim not in ds.coords:
+            ds = ds.swap_dims({dim: name}).rename({name: dim})
+    return ds
+

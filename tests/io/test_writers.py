@@ -137,6 +137,13 @@ def test_labels_become_an_auxiliary_coordinate_and_integers_32_bit(tmp_path):
         for b in ds.basin.values:
             np.testing.assert_array_equal(named.interior_transport.sel(basin_name=b),
                                           ds.interior_transport.sel(basin=b).transpose("time", "lat"))
+    # open_results puts the names back as the basin coordinate.
+    from sverdrup_kit import open_results
+
+    with open_results(path) as back:
+        for b in ds.basin.values:
+            np.testing.assert_array_equal(back.interior_transport.sel(basin=b),
+                                          ds.interior_transport.sel(basin=b).transpose("time", "lat"))
 
 
 def test_hydrographic_results_pass_the_cf_1_8_compliance_checker(tmp_path, monkeypatch):
