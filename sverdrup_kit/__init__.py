@@ -25,9 +25,21 @@ from .errors import (
     UnitsError,
 )
 from .io.readers import open_stress, open_winds
-from .io.writers import write_netcdf
+from .io.masks import ocean_fraction, ocean_mask
+from .climatology import anomalies, climatology
+from .spread import spread_table, transport_spread
+from .errors import BuiltinOceanMaskWarning
+from .io.writers import open_results, write_netcdf
 from .ocean.hydrography import LinearEquationOfState, balance_check, geostrophic_transport
 from .ocean.observations import balance_section_observations, boundary_current_observations
+from .physics.adjustment import (
+    adjustment_flags,
+    default_n_squared,
+    first_mode_speed,
+    first_mode_speed_from_ts,
+    long_wave_response,
+    rossby_adjustment,
+)
 from .physics.barotropic import boundary_current, solve_barotropic, solve_basin
 from .physics.boundary_layers import (
     munk_boundary_layer,
@@ -47,6 +59,19 @@ from .pipeline import diagnose
 __version__ = "0.1.0"
 
 __all__ = [
+    "adjustment_flags",
+    "default_n_squared",
+    "first_mode_speed",
+    "first_mode_speed_from_ts",
+    "long_wave_response",
+    "rossby_adjustment",
+    "anomalies",
+    "BuiltinOceanMaskWarning",
+    "climatology",
+    "ocean_fraction",
+    "ocean_mask",
+    "spread_table",
+    "transport_spread",
     "AIR_DENSITY",
     "balance_check",
     "balance_section_observations",
@@ -77,6 +102,7 @@ __all__ = [
     "munk_peak_distance",
     "munk_width",
     "OMEGA",
+    "open_results",
     "open_stress",
     "open_winds",
     "RHO0",

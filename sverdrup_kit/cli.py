@@ -1,6 +1,7 @@
 """Command line: run the whole diagnosis on a wind file and write results and figures.
 
-``sverdrup-kit diagnose FILE --out DIR`` or ``sverdrup-kit diagnose --synthetic --out DIR``.
+``sverdrup-kit diagnose FILE [FILE ...] --out DIR`` or ``sverdrup-kit diagnose --synthetic --out DIR``;
+``sverdrup-kit spread PRODUCT [PRODUCT ...] --drag-laws A,B --latitudes 26.5,30``.
 Bad arguments and unreadable files give one clear line on stderr and exit status 2; nothing
 is left half-written.
 """
@@ -59,7 +60,10 @@ def _parser() -> argparse.ArgumentParser:
         "western boundary current that returns it.",
     )
     src = d.add_mutually_exclusive_group(required=True)
-    src.add_argument("source", nargs="?", help="wind or wind-stress file (NetCDF), or a URL")
+    src.add_argument("source", nargs="*", default=[],
+                     help="wind or wind-stress files (NetCDF, Zarr store or URL); several files "
+                          "or patterns (u and v in separate files, one file per year) are "
+                          "read as one record, e.g. 'u_*.nc' 'v_*.nc'")
     src.add_argument("--synthetic", action="store_true",
                      help="use the bundled synthetic world instead of a file")
     d.add_argument("--out", required=True, help="folder for results.nc and the figures")
@@ -80,11 +84,189 @@ def _parser() -> argparse.ArgumentParser:
                         "ocean regions")
     d.add_argument("--water-density", type=float, default=None,
                    help="reference sea-water density rho0, kg m-3 (default 1025)")
+    _mask_options(d)
+    d.add_argument("--stress-sign", choices=("downward", "upward"), default=None,
+                   help="with --input-kind stress: the file holds the stress of the air on the "
+                        "sea (downward, the usual wind stress) or of the sea on the air "
+                        "(upward); needed only when the file does not say")
+    d.add_argument("--latitudes", type=_latitudes_arg, default=None, metavar="LAT,LAT,...",
+                   help="latitudes of the printed summary, degrees_north (default "
+                        "-40,-30,-20,20,30,40,50)")
     d.add_argument("--no-figures", action="store_true", help="write the NetCDF only")
     d.add_argument("--no-progress", action="store_true",
                    help="do not draw a progress bar for computations longer than a second")
     d.add_argument("--quiet", action="store_true", help="print only errors")
+    _spread_parser(sub, DRAG_LAWS)
     return p
+
+
+# --- wind products: masks and the spread command ---------------------------------------------
+
+
+def _latitudes_arg(text: str):
+    try:
+        lats = [float(x) for x in text.split(",") if x.strip()]
+    except ValueError:
+        raise argparse.ArgumentTypeError(
+            f"expected latitudes in degrees_north separated by commas, e.g. 26.5,30, found "
+            f"{text!r}") from None
+    if not lats or any(not -90 <= x <= 90 for x in lats):
+        raise argparse.ArgumentTypeError(
+            f"expected latitudes within -90..90 separated by commas, found {text!r}")
+    return lats
+
+
+def _threshold_arg(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        value = None
+    if value is None or not 0.0 < value <= 1.0:
+        raise argparse.ArgumentTypeError(
+            f"expected the ocean fraction that makes a wind cell ocean, a number in (0, 1], "
+            f"found {text!r}. Fix: e.g. --ocean-threshold 0.5")
+    return value
+
+
+def _mask_options(p) -> None:
+    p.add_argument("--ocean-mask", metavar="FILE|earth|data", default=None,
+                   help="where the ocean is: a relief, sea-floor depth, land-fraction or "
+                        "ocean-fraction file on any grid (averaged onto the wind grid), 'earth' "
+                        "for the built-in Earth mask, or 'data' for land where the winds are "
+                        "missing. Default: 'earth' for global products with winds over land "
+                        "(no missing values), else 'data'")
+    p.add_argument("--ocean-mask-var", metavar="NAME", default=None,
+                   help="variable of the mask file, if it holds several")
+    p.add_argument("--ocean-mask-kind", default=None,
+                   choices=("relief", "depth", "land_fraction", "ocean_fraction"),
+                   help="what the mask variable holds, if its standard_name, name or units do "
+                        "not say")
+    p.add_argument("--ocean-threshold", type=_threshold_arg, default=0.5, metavar="FRACTION",
+                   help="a wind cell is ocean when at least this fraction of it is ocean "
+                        "(default 0.5)")
+
+
+def _spread_parser(sub, drag_laws) -> None:
+    s = sub.add_parser(
+        "spread",
+        help="Sverdrup transport across wind products and drag laws, with its spread",
+        description="Diagnose several wind products with several drag laws on one common grid "
+        "(the coarsest; other products' stress is averaged by area onto it) with one ocean "
+        "mask and the Earth basins, and print the mean, range and standard deviation of the "
+        "Sverdrup interior transport at chosen latitudes beside the observed western boundary "
+        "currents.",
+    )
+    s.add_argument("products", nargs="+", metavar="PRODUCT",
+                   help="one wind product each: a file, a quoted pattern ('navy_*.nc'), or "
+                        "files joined by commas (u.nc,v.nc); NAME=... names it")
+    s.add_argument("--drag-laws", default="large-pond-1981,large-yeager-2009", metavar="A,B",
+                   help="drag laws separated by commas: " + ", ".join(drag_laws)
+                        + " or constant coefficients (default large-pond-1981,large-yeager-2009)")
+    s.add_argument("--mean-speed", default="vector", metavar="vector,scalar",
+                   help="speed in the bulk formula: 'vector' (from the mean wind components), "
+                        "'scalar' (the product's mean wind speed, where it has one), or both "
+                        "'vector,scalar' (default vector)")
+    s.add_argument("--latitudes", type=_latitudes_arg, default=[-27.0, 26.5, 30.0],
+                   metavar="LAT,LAT,...", help="latitudes of the table, degrees_north "
+                                                "(default -27,26.5,30)")
+    s.add_argument("--ocean-mask", metavar="FILE|earth|data", default="earth",
+                   help="one ocean mask for every product on the common grid (default the "
+                        "built-in Earth mask)")
+    s.add_argument("--ocean-mask-var", metavar="NAME", default=None,
+                   help="variable of the mask file, if it holds several")
+    s.add_argument("--ocean-threshold", type=_threshold_arg, default=0.5, metavar="FRACTION",
+                   help="a cell is ocean when at least this fraction of it is ocean (default 0.5)")
+    s.add_argument("--out", default=None,
+                   help="folder for spread.nc and spread.png (default: print the table only)")
+    s.add_argument("--quiet", action="store_true", help="print only the table and errors")
+
+
+def _product_source(text: str):
+    name, _, rest = text.partition("=") if "=" in text and not text.startswith(
+        ("http://", "https://")) else ("", "", text)
+    parts = [x for x in rest.split(",") if x]
+    return (name or None), (parts if len(parts) > 1 else parts[0])
+
+
+def _run_spread(args) -> int:
+    import xarray as xr
+
+    from . import open_winds
+    from .io.writers import write_netcdf
+    from .spread import spread_table, transport_spread
+
+    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
+    laws = [_drag_arg(x.strip()) for x in args.drag_laws.split(",") if x.strip()]
+    speeds = [x.strip() for x in args.mean_speed.split(",") if x.strip()]
+    sources, names = [], []
+    for text in args.products:
+        name, src = _product_source(text)
+        say(f"reading {src}")
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            ds = open_winds(_existing(src, "PRODUCT"))
+        sources.append(ds)
+        names.append(name or Path(str(src[0] if isinstance(src, list) else src)).stem
+                     .replace("*", ""))
+    mask = args.ocean_mask
+    if mask not in ("earth", "data"):
+        _existing(mask, "--ocean-mask")
+    say(f"diagnosing {len(sources)} products x {len(laws)} drag laws x {len(speeds)} mean "
+        "speeds")
+    res = transport_spread(sources, names=names, drag_laws=laws, mean_speeds=speeds,
+                           ocean_mask=(mask if args.ocean_mask_var is None or mask in
+                                       ("earth", "data")
+                                       else xr.open_dataset(mask)[args.ocean_mask_var]),
+                           ocean_threshold=args.ocean_threshold).compute()
+    say(f"common grid: {res.attrs['common_grid']}")
+    say(f"ocean mask: {res.attrs['ocean_mask']}")
+    rows = spread_table(res, args.latitudes)
+    print("Sverdrup interior transport (Sv, + northward) over products, drag laws and mean "
+          "speeds; observed: minus the observed western boundary current (the interior flow "
+          "it returns)")
+    print(f"  {'basin':<10s}{'lat':>7s}{'grid':>7s}{'mean':>8s}{'min':>8s}{'max':>8s}"
+          f"{'range':>8s}{'s.d.':>7s}{'n':>4s}  observed")
+    for r in rows:
+        if r["count"] == 0:
+            continue
+        obs = (f"{r['observed_return']:6.1f}  {r['observed']} ({r['observed_source']})"
+               if r["observed"] else "     -")
+        print(f"  {r['basin']:<10s}{latitude_label(r['lat']):>7s}"
+              f"{latitude_label(r['grid_lat']):>7s}{r['mean']:8.1f}{r['min']:8.1f}"
+              f"{r['max']:8.1f}{r['max'] - r['min']:8.1f}{r['std']:7.1f}{r['count']:4d}  {obs}")
+    if args.out is not None:
+        out = Path(args.out)
+        if out.exists() and not out.is_dir():
+            raise CommandError(f"--out: expected a folder, found a file '{out}'. Fix: pick a "
+                               "folder.")
+        out.mkdir(parents=True, exist_ok=True)
+        say(f"wrote {write_netcdf(res, out / 'spread.nc')}")
+        from .plotting.spread import plot_transport_spread
+
+        import matplotlib.pyplot as plt
+
+        fig, _ = plot_transport_spread(res, width="page")
+        fig.savefig(out / "spread.png", dpi=150)
+        plt.close(fig)
+        say(f"wrote {out / 'spread.png'}")
+    return 0
+
+
+def _existing(src, argname):
+    """Refuse paths that do not exist (patterns must match something), in one line."""
+    import glob
+
+    for item in (src if isinstance(src, list) else [src]):
+        text = str(item)
+        if text.startswith(("http://", "https://")):
+            continue
+        if any(c in text for c in "*?["):
+            if not glob.glob(text):
+                raise CommandError(f"{argname}: no file matches '{text}'. Fix: check the "
+                                   "pattern and quote it so the shell does not expand it.")
+        elif not Path(text).exists():
+            raise CommandError(f"{argname}: no such file '{text}'. Fix: check the path.")
+    return src
 
 
 def _open(args):
@@ -93,12 +275,17 @@ def _open(args):
 
     if args.synthetic:
         return load_world()
-    src = args.source
-    if not (str(src).startswith(("http://", "https://")) or Path(src).exists()):
-        raise CommandError(f"source: no such file '{src}'. Fix: check the path.")
+    srcs = args.source
+    for one in srcs:
+        if not (str(one).startswith(("http://", "https://")) or Path(one).exists()
+                or any(c in str(one) for c in "*?[")):
+            raise CommandError(f"source: no such file '{one}'. Fix: check the path.")
+    _existing(srcs, "source")
+    src = srcs[0] if len(srcs) == 1 else list(srcs)
     try:
         if args.input_kind == "stress":
-            return open_stress(src, taux=args.u_var, tauy=args.v_var)
+            return open_stress(src, taux=args.u_var, tauy=args.v_var,
+                               stress_sign=args.stress_sign)
         return open_winds(src, u=args.u_var, v=args.v_var)
     except OSError as err:
         raise CommandError(
@@ -107,12 +294,13 @@ def _open(args):
         ) from None
 
 
-def _summary(res, say) -> None:
-    lats = [-40, -30, -20, 20, 30, 40, 50]
+def _summary(res, say, lats=None) -> None:
+    lats = [-40, -30, -20, 20, 30, 40, 50] if lats is None else lats
     tr = res["interior_transport"]
     say("interior Sverdrup transport (Sv, + northward); the western boundary current carries "
         "minus this:")
-    header = "  basin            " + "".join(f"{latitude_label(la, 0):>7s}" for la in lats)
+    header = "  basin            " + "".join(
+        f"{latitude_label(la, 0 if float(la).is_integer() else 1):>7s}" for la in lats)
     say(header)
     for b in tr["basin"].values:
         row = tr.sel(basin=b)
@@ -130,6 +318,40 @@ def _summary(res, say) -> None:
             g = g[np.isfinite(g)]
             if g.size:
                 say(f"  gyre boundaries in {b}: " + ", ".join(latitude_label(x) for x in g))
+    _adjustment_summary(res, say, lats)
+
+
+def _adjustment_summary(res, say, lats) -> None:
+    """Rossby-wave crossing times and the rows whose time-resolved transport had time to adjust."""
+    if "basin_crossing_time" not in res:
+        return
+    years = res["basin_crossing_time"] / 365.25
+    say("long Rossby-wave crossing time from the eastern coast to the western boundary (years):")
+    for b in years["basin"].values:
+        row = years.sel(basin=b)
+        vals = [float(row.sel(lat=la, method="nearest")) if row.lat.min() <= la <= row.lat.max()
+                else np.nan for la in lats]
+        if np.isfinite(vals).any():
+            say(f"  {str(b):<16s} " + "".join(f"{v:7.1f}" if np.isfinite(v) else "      -"
+                                               for v in vals))
+    if "sverdrup_adjusted" not in res or "interior_transport_by_time" not in res:
+        return
+    scale = res["interior_transport_by_time"].attrs.get("adjustment_time_scale")
+    if scale not in res["sverdrup_adjusted"]["time_scale"].values:
+        return
+    say(f"rows where the {scale} transports (interior_transport_by_time) had time to adjust "
+        "to Sverdrup balance:")
+    flags = res["sverdrup_adjusted"].sel(time_scale=scale)
+    valid = res["row_status"] == 0
+    for b in flags["basin"].values:
+        ok = ((flags.sel(basin=b) == 1) & valid.sel(basin=b)).values
+        if not valid.sel(basin=b).any():
+            continue
+        lat = flags["lat"].values
+        edges = np.flatnonzero(np.diff(np.concatenate([[0], ok.astype(int), [0]])))
+        spans = [f"{latitude_label(lat[i])} to {latitude_label(lat[j - 1])}"
+                 for i, j in zip(edges[::2], edges[1::2])]
+        say(f"  {str(b):<16s} " + ("; ".join(spans) if spans else "none"))
 
 
 def _run_diagnose(args) -> int:
@@ -141,7 +363,10 @@ def _run_diagnose(args) -> int:
     if out.exists() and not out.is_dir():
         raise CommandError(f"--out: expected a folder, found a file '{out}'. Fix: pick a folder.")
     t0 = time.perf_counter()
-    say(f"reading {'the bundled synthetic world' if args.synthetic else args.source}")
+    if not args.synthetic and not args.source:
+        raise CommandError("source: expected a wind file (or --synthetic), found none. Fix: "
+                           "sverdrup-kit diagnose FILE --out DIR.")
+    say(f"reading {'the bundled synthetic world' if args.synthetic else ' '.join(args.source)}")
     winds = _open(args)
     kw = {}
     if args.air_density is not None:
@@ -153,6 +378,8 @@ def _run_diagnose(args) -> int:
         from .synthetic import world_basins
 
         basins = world_basins(winds)
+    if not args.synthetic:
+        kw["ocean_mask"] = _resolve_mask(args, winds, say)
     say("computing stress, curl, Ekman and Sverdrup transports")
     res = diagnose(winds, drag_law=args.drag_law, basins=basins, **kw)
     from .progress import progress
@@ -162,7 +389,7 @@ def _run_diagnose(args) -> int:
     out.mkdir(parents=True, exist_ok=True)
     path = write_netcdf(res, out / "results.nc")
     say(f"wrote {path}")
-    _summary(res, say)
+    _summary(res, say, args.latitudes)
     if not args.no_figures:
         from .plotting.figures import save_standard_figures
 
@@ -170,6 +397,27 @@ def _run_diagnose(args) -> int:
             say(f"wrote {p}")
     say(f"done in {time.perf_counter() - t0:.1f} s")
     return 0
+
+
+def _resolve_mask(args, winds, say):
+    """The mask diagnose gets, said in one line (the built-in one chosen here is no surprise)."""
+    from .pipeline import resolve_ocean_mask
+
+    choice = args.ocean_mask
+    if choice is not None and choice not in ("earth", "data"):
+        _existing(choice, "--ocean-mask")
+    try:
+        mask, note = resolve_ocean_mask(winds, choice, threshold=args.ocean_threshold,
+                                        variable=args.ocean_mask_var, kind=args.ocean_mask_kind)
+    except ValueError as err:
+        raise CommandError(str(err).replace("ocean_mask_variable", "--ocean-mask-var")
+                           .replace("ocean_mask_kind", "--ocean-mask-kind")
+                           .replace("ocean_mask:", "--ocean-mask:")) from None
+    if choice is None and mask is not None:
+        note = (note.split(" Fix:")[0].rstrip(".")
+                + "; --ocean-mask FILE (or 'data') chooses another")
+    say(f"ocean mask: {note}")
+    return mask if mask is not None else "data"
 
 
 def _warn_one_line(message, category, filename, lineno, file=None, line=None):
@@ -187,6 +435,8 @@ def main(argv=None) -> int:
             warnings.showwarning = _warn_one_line
             if args.command == "diagnose":
                 return _run_diagnose(args)
+            if args.command == "spread":
+                return _run_spread(args)
     except CommandError as err:
         print(f"sverdrup-kit: {err}", file=sys.stderr)
         return EXIT_USAGE

@@ -9,6 +9,7 @@ catches that keeps working.
 from __future__ import annotations
 
 __all__ = [
+    "BuiltinOceanMaskWarning",
     "GridError",
     "InputError",
     "MonthlyMeanWindWarning",
@@ -36,3 +37,7 @@ class MonthlyMeanWindWarning(UserWarning):
 
 class TimeDecodingWarning(UserWarning):
     """A time axis that its own calendar cannot decode was decoded another way."""
+
+
+class BuiltinOceanMaskWarning(UserWarning):
+    """Winds over land were masked with the built-in Earth ocean mask, chosen automatically."""

@@ -8,11 +8,15 @@ from __future__ import annotations
 
 import warnings
 
+import numpy as np
 import xarray as xr
 
 from . import constants
+from .errors import BuiltinOceanMaskWarning
+from .io import masks as _masks
 from .physics.ekman import DEFAULT_EQUATORIAL_HALF_WIDTH, ekman
 from .physics.stress import wind_stress
+from .physics.adjustment import adjustment_flags, averaging_period, rossby_adjustment
 from .physics.sverdrup import sverdrup_transport
 
 __all__ = ["diagnose"]
@@ -31,6 +35,91 @@ def _stress_from(winds: xr.Dataset, *, drag_law, air_density, use_wind_speed) ->
     return wind_stress(winds["u"], winds["v"], drag_law=drag_law, air_density=air_density, wind_speed=speed)
 
 
+def _dated(time: xr.DataArray) -> bool:
+    """Whether a time coordinate holds dates (undecodable climatology times stay numbers)."""
+    v = time.values
+    return bool(np.issubdtype(v.dtype, np.datetime64) or (v.dtype == object and v.size and hasattr(
+        v[0], "calendar")))
+
+
+def resolve_ocean_mask(winds: xr.Dataset, ocean_mask=None, *, threshold: float = 0.5,
+                       variable: str | None = None, kind: str | None = None):
+    """The ocean mask :func:`diagnose` uses for ``winds``, and one line saying where it came from.
+
+    Parameters
+    ----------
+    winds : xarray.Dataset
+        From :func:`~sverdrup_kit.open_winds` or :func:`~sverdrup_kit.open_stress`.
+    ocean_mask : None, "earth", "data", path, xarray.Dataset or xarray.DataArray, optional
+        ``None`` (automatic): the built-in Earth mask when the grid is global and the first
+        time step has no missing values (winds over land), otherwise the data's own missing
+        values. ``"earth"``: the built-in Earth mask. ``"data"``: land where the data are
+        missing. A path, Dataset or DataArray on another grid: relief, depth, land or ocean
+        fraction averaged onto the wind grid (:func:`~sverdrup_kit.io.masks.ocean_mask`). A
+        DataArray on the wind grid itself is used as it is (True or 1 for ocean).
+    threshold, variable, kind
+        Passed to :func:`~sverdrup_kit.io.masks.ocean_mask`.
+
+    Returns
+    -------
+    mask : xarray.DataArray (lat, lon) of bool, or None
+        None when the data's missing values decide.
+    note : str
+        One line for the user and the ``ocean_mask`` attribute of the result.
+    """
+    _masks.check_threshold(threshold, "ocean_threshold")
+    fields = [n for n in ("u", "v", "taux", "tauy") if n in winds]
+    if ocean_mask is None:
+        if _masks.is_global(winds) and fields and not _masks.has_missing(winds, fields):
+            mask = _masks.ocean_mask("earth", winds, threshold=threshold)
+            mask.attrs["note"] = (
+                "the winds have no missing values on a global grid (winds over land), so the "
+                f"built-in Earth ocean mask was used (ocean fraction >= {threshold:g}, from the "
+                "ETOPO5 relief)"
+            )
+            return mask, mask.attrs["note"] + (
+                ". Fix: pass ocean_mask='earth' to choose it and silence this, a mask file of "
+                "your own, or ocean_mask='data'."
+            )
+        return None, "land where the data are missing"
+    if isinstance(ocean_mask, str) and ocean_mask.strip().lower() == "data":
+        return None, "land where the data are missing"
+    if isinstance(ocean_mask, xr.DataArray) and _same_grid(ocean_mask, winds):
+        # A mask made here earlier (the command line resolves it first) keeps its story.
+        return ocean_mask, str(ocean_mask.attrs.get(
+            "note", f"ocean_mask given on the wind grid ('{ocean_mask.name}')"))
+    mask = _masks.ocean_mask(ocean_mask, winds, threshold=threshold, variable=variable, kind=kind)
+    mask.attrs["note"] = (f"{mask.attrs['source']}; ocean where at least {threshold:g} of a wind "
+                          "cell is ocean")
+    return mask, mask.attrs["note"]
+
+
+def _same_grid(mask: xr.DataArray, winds) -> bool:
+    from .geometry.coords import find_latlon, matching_positions
+
+    try:
+        mlat, mlon = find_latlon(mask, argname="ocean_mask")
+        wlat, wlon = find_latlon(winds, argname="winds")
+    except ValueError:
+        return False
+    return (matching_positions(mask[mlat].values, winds[wlat].values) is not None
+            and matching_positions(mask[mlon].values, winds[wlon].values, 360.0) is not None)
+
+
+def _on_grid(mask: xr.DataArray, field: xr.DataArray) -> xr.DataArray:
+    """``mask`` with the coordinate names and values of ``field`` (same points, any order)."""
+    from .geometry.coords import find_latlon, matching_positions
+
+    mlat, mlon = find_latlon(mask, argname="ocean_mask")
+    flat, flon = find_latlon(field, argname="winds")
+    ilat = matching_positions(mask[mlat].values, field[flat].values)
+    ilon = matching_positions(mask[mlon].values, field[flon].values, 360.0)
+    out = mask.isel({mlat: ilat, mlon: ilon})
+    out = out.drop_vars([c for c in out.coords if c not in (mlat, mlon)])
+    out = out.rename({mlat: "_mlat", mlon: "_mlon"}).rename({"_mlat": flat, "_mlon": flon})
+    return out.assign_coords({flat: field[flat].values, flon: field[flon].values})
+
+
 def diagnose(
     winds: xr.Dataset,
     *,
@@ -39,8 +128,11 @@ def diagnose(
     use_wind_speed: bool = True,
     basins=None,
     ocean_mask=None,
+    ocean_threshold: float = 0.5,
+    ocean_mask_variable: str | None = None,
     rho0: float = constants.RHO0,
     equatorial_half_width: float = DEFAULT_EQUATORIAL_HALF_WIDTH,
+    first_mode_speed=None,
 ) -> xr.Dataset:
     """Run the data path on a wind (or stress) climatology.
 
@@ -54,8 +146,23 @@ def diagnose(
     use_wind_speed : bool, optional
         Use the scalar-mean ``wind_speed`` in the bulk formula when the data carry it (the
         better choice for monthly climatologies).
-    basins, ocean_mask, rho0, equatorial_half_width
+    ocean_mask : None, "earth", "data", path, xarray.Dataset or xarray.DataArray, optional
+        Where the ocean is (see :func:`resolve_ocean_mask`). By default a global product with
+        winds over land (no missing values) gets the built-in Earth mask, with a
+        :class:`~sverdrup_kit.errors.BuiltinOceanMaskWarning` saying so; otherwise land is
+        where the data are missing. Winds (or stress) over land are set missing before the
+        stress, curl and Ekman fields are computed, as if masked by hand.
+    ocean_threshold : float, optional
+        A wind cell is ocean when at least this fraction of it is ocean (0..1], for masks
+        given as relief or fractions on another grid, and for the built-in one.
+    ocean_mask_variable : str, optional
+        The mask's variable in a file that holds several.
+    basins, rho0, equatorial_half_width
         Passed to :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport` and :func:`~sverdrup_kit.physics.ekman.ekman`.
+    first_mode_speed : None, float or xarray.DataArray (lat, lon), optional
+        First baroclinic gravity-wave speed in m s-1 for the Rossby-wave adjustment times,
+        passed to :func:`~sverdrup_kit.physics.adjustment.rossby_adjustment` (default: its
+        documented default stratification).
 
     Returns
     -------
@@ -63,7 +170,13 @@ def diagnose(
         Time-mean stress, curl, Ekman fields and every Sverdrup result, plus, when the input
         has a ``time`` dimension, ``interior_transport_by_time`` (time, basin, lat): the
         Sverdrup interior transport of each time step (the seasonal cycle of a climatology).
-        Lazy where the input is.
+        The Rossby-wave adjustment of :func:`~sverdrup_kit.physics.adjustment.rossby_adjustment`
+        (``basin_crossing_time`` and the fields beside it) and ``sverdrup_adjusted``
+        (time_scale, basin, lat) from :func:`~sverdrup_kit.physics.adjustment.adjustment_flags`:
+        whether each row had time to adjust at the monthly, seasonal and annual scales (and
+        the record length when the record is longer than a year); the scale of the input's
+        own steps is named in the ``adjustment_time_scale`` attribute of
+        ``interior_transport_by_time``. Lazy where the input is.
 
     Notes
     -----
@@ -76,6 +189,18 @@ def diagnose(
             f"winds: expected an xarray.Dataset, found {type(winds).__name__}. Fix: open the "
             "file with sverdrup_kit.open_winds(path)."
         )
+    mask, note = resolve_ocean_mask(winds, ocean_mask, threshold=ocean_threshold,
+                                    variable=ocean_mask_variable)
+    if mask is not None and ocean_mask is None:
+        warnings.warn(note, BuiltinOceanMaskWarning, stacklevel=2)
+    if mask is not None:
+        # Mask the inputs, not only the transport: the curl next to a coast must not see the
+        # stress of winds over land.
+        keep = mask if mask.dtype == bool else mask.fillna(0) != 0
+        winds = winds.copy()
+        for name in [n for n in ("u", "v", "wind_speed", "taux", "tauy") if n in winds]:
+            winds[name] = winds[name].where(_on_grid(keep, winds[name]))
+    ocean_mask = mask
     stress = _stress_from(winds, drag_law=drag_law, air_density=air_density, use_wind_speed=use_wind_speed)
     has_time = "time" in stress.dims
     with warnings.catch_warnings():
@@ -85,22 +210,31 @@ def diagnose(
     if has_time:
         # Land is where every time step is missing; a cell observed in some months only (a
         # ship-based climatology's gaps) is averaged over the months it has.
+        # No cell_methods "time: mean": CF-1.8 (section 7.3) wants its name to be a dimension or
+        # a scalar coordinate of the variable, and the mean has neither (the file's time
+        # dimension belongs to interior_transport_by_time). The comment says it in words.
         for name in ("taux", "tauy"):
-            mean[name].attrs["cell_methods"] = "time: mean"
+            mean[name].attrs.pop("cell_methods", None)
             mean[name].attrs["comment"] = (
-                "mean over the time steps with data; cells missing in some steps are averaged "
-                "over the steps they have"
+                f"mean over the {stress.sizes['time']} time steps of the input, each with data; "
+                "cells missing in some steps are averaged over the steps they have"
             )
     sv = sverdrup_transport(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
                   equatorial_half_width=equatorial_half_width)
     ek = ekman(mean["taux"], mean["tauy"], rho0=rho0, equatorial_half_width=equatorial_half_width)
-    out = xr.merge([mean, ek, sv], compat="override", combine_attrs="drop_conflicts")
+    adj = rossby_adjustment(sv, first_mode_speed=first_mode_speed)
+    out = xr.merge([mean, ek, sv, adj], compat="override", combine_attrs="drop_conflicts")
+    dated = has_time and stress.sizes["time"] > 1 and _dated(stress["time"])
+    out["sverdrup_adjusted"] = adjustment_flags(adj["basin_crossing_time"],
+                                                time=stress["time"] if dated else None)
     if has_time:
         monthly = sverdrup_transport(stress["taux"], stress["tauy"], basins=basins, ocean_mask=ocean_mask,
                            rho0=rho0, equatorial_half_width=equatorial_half_width)
         out["interior_transport_by_time"] = monthly["interior_transport"].assign_attrs(
             monthly["interior_transport"].attrs,
             long_name="Sverdrup interior transport of each time step",
+            ancillary_variables="sverdrup_adjusted",
+            adjustment_time_scale=averaging_period(stress["time"])[0] if dated else "unknown",
         )
     out.attrs.update(
         title="Wind-driven circulation diagnosed from a wind climatology",
@@ -108,6 +242,7 @@ def diagnose(
         rho0=rho0,
         equatorial_half_width=equatorial_half_width,
         source_winds=str(winds.attrs.get("source", winds.attrs.get("title", "unknown"))),
+        ocean_mask=note,
     )
     return out
 

@@ -46,3 +46,9 @@ def levitus():
 def navy_winds():
     """Path of ``navy_monthly_winds.nc`` (monthly surface winds, 2.5 degree, 132 months)."""
     return _real_file("navy_monthly_winds")
+
+
+@pytest.fixture(scope="session")
+def etopo5():
+    """Path of ``etopo5.nc`` (global relief at 5 minutes, source of the built-in Earth mask)."""
+    return _real_file("etopo5")

@@ -9,6 +9,8 @@ import xarray as xr
 
 from sverdrup_kit.cli import main
 
+from ._cf_check import cf_problems
+
 
 @pytest.fixture(scope="module")
 def synthetic_run(tmp_path_factory):
@@ -35,6 +37,13 @@ def test_results_reopen_and_units_parse_with_udunits(synthetic_run):
         assert cf_units.Unit(ds.sverdrup_streamfunction.attrs["units"]).is_convertible("m3 s-1")
         assert ds.interior_transport.dims[-2:] == ("basin", "lat")
         assert np.isfinite(ds.interior_transport).any()
+
+
+def test_results_pass_the_cf_1_8_compliance_checker(synthetic_run, monkeypatch):
+    # The IOOS compliance checker's cf:1.8 suite (a general-purpose reference tool): no errors
+    # and no warnings. Before: int64 gyre_boundary_count, _FillValue on lat/lon/time, latitude
+    # attributes on the Ekman transports, stale cell_methods, T before basin.
+    assert cf_problems(synthetic_run / "results.nc", monkeypatch) == []
 
 
 def test_figures_are_written(synthetic_run):

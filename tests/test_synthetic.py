@@ -12,6 +12,8 @@ from scipy import ndimage, special, stats
 from sverdrup_kit import synthetic
 from sverdrup_kit.physics.operators import wind_stress_curl
 
+from ._cf_check import cf_problems
+
 # Coefficients as documented in the module docstring of sverdrup_kit.synthetic, written out
 # again here so that a silent change of the generator shows up as a failure.
 A_COS = (-0.1, -2.6, -5.8, 0.7, 3.1)
@@ -96,6 +98,15 @@ def test_failed_write_leaves_nothing(tmp_path, monkeypatch):
     with pytest.raises(OSError, match="disk full"):
         synthetic.write_world(tmp_path / "world.nc")
     assert os.listdir(tmp_path) == []
+
+
+def test_bundled_file_passes_the_cf_compliance_checker_for_its_conventions(monkeypatch):
+    # The IOOS compliance checker (general-purpose reference tool), offline, for the CF
+    # version the file declares: no errors and no warnings.
+    path = os.path.join(os.path.dirname(synthetic.__file__), "data", "synthetic_world.nc")
+    with xr.open_dataset(path) as ds:
+        assert ds.attrs["Conventions"] == "CF-1.10"
+    assert cf_problems(path, monkeypatch, suite="cf:1.10") == []
 
 
 def test_bundled_file_is_small():

@@ -136,8 +136,10 @@ def passes_continent(arcs, kmin, kmax, shift, has, nx):
 #: given, but the row is not valid); every other value leaves the row empty (NaN).
 ROW_STATUS = {
     0: ("valid", "interior transport computed"),
-    1: ("equatorial_band", "within the equatorial band, where the Ekman/geostrophic split "
-        "and the Sverdrup balance do not hold"),
+    1: ("equatorial_band", "within the equatorial band, where V = curl/(rho0 beta) stays "
+        "finite but the Ekman and geostrophic parts (both as 1/f) lose their meaning and "
+        "equatorial dynamics (undercurrents, nonlinearity, friction) break the Sverdrup "
+        "balance"),
     2: ("no_eastern_coast", "the basin's ocean in this row has no eastern coast: it wraps all "
         "the way round (a circumpolar band), or its eastern end is open to another basin or "
         "the edge of the grid"),

@@ -42,11 +42,16 @@ class _Field:
     standard_names: tuple
     names: tuple
     long_names: tuple
+    # Stress only: standard names of the opposite sign (the stress of the sea on the air), and
+    # names of momentum fluxes whose sign convention differs between products.
+    upward_standard_names: tuple = ()
+    unsigned_names: tuple = ()
 
 
 # Tables of criteria, kept apart from the logic. Names are those real wind and stress products
 # use (reanalyses, scatterometer and ship climatologies, CMIP, ocean-model forcing files).
-# Momentum-flux names such as NCEP's 'uflx' are left out on purpose: their sign is upward.
+# Momentum-flux names such as NCEP's 'uflx' are recognised, but their sign convention differs
+# between products: they need ``stress_sign`` unless a standard name or long name says it.
 WIND_FIELDS = (
     _Field(
         "u", "u", "speed", "eastward_wind", "eastward wind",
@@ -83,6 +88,8 @@ STRESS_FIELDS = (
         ("zonal wind stress", "eastward wind stress", "zonal surface stress",
          "eastward surface stress", "zonal stress", "surface downward eastward stress",
          "mean eastward turbulent surface stress"),
+        ("surface_upward_eastward_stress",),
+        ("uflx", "momentum_flux_u", "umom", "u_momentum_flux", "zonal_momentum_flux"),
     ),
     _Field(
         "tauy", "tauy", "stress", "surface_downward_northward_stress",
@@ -93,6 +100,8 @@ STRESS_FIELDS = (
         ("meridional wind stress", "northward wind stress", "meridional surface stress",
          "northward surface stress", "meridional stress", "surface downward northward stress",
          "mean northward turbulent surface stress"),
+        ("surface_upward_northward_stress",),
+        ("vflx", "momentum_flux_v", "vmom", "v_momentum_flux", "meridional_momentum_flux"),
     ),
 )
 REQUIRED = {"u", "v", "taux", "tauy"}
@@ -177,7 +186,7 @@ def open_winds(source, *, u=None, v=None, wind_speed=None) -> xr.Dataset:
     return _open(source, WIND_FIELDS, {"u": u, "v": v, "speed": wind_speed}, "open_winds")
 
 
-def open_stress(source, *, taux=None, tauy=None) -> xr.Dataset:
+def open_stress(source, *, taux=None, tauy=None, stress_sign=None) -> xr.Dataset:
     """Open surface wind stress and put it on the canonical grid in Pa.
 
     Parameters
@@ -200,9 +209,16 @@ def open_stress(source, *, taux=None, tauy=None) -> xr.Dataset:
     Raises
     ------
     GridError, UnitsError, ValueError
-        As in :func:`open_winds`.
+        As in :func:`open_winds`; ValueError also when the sign of the stress cannot be told
+        (a momentum flux with no standard name, or attributes that contradict each other).
     """
-    return _open(source, STRESS_FIELDS, {"taux": taux, "tauy": tauy}, "open_stress")
+    if stress_sign not in (None, "downward", "upward"):
+        raise ValueError(
+            f"open_stress: stress_sign: expected 'downward' (stress of the air on the sea) or "
+            f"'upward' (of the sea on the air), found {stress_sign!r}. Fix: pass one of those."
+        )
+    return _open(source, STRESS_FIELDS, {"taux": taux, "tauy": tauy}, "open_stress",
+                 stress_sign=stress_sign)
 
 
 # ---------------------------------------------------------------------------------------------
@@ -219,7 +235,7 @@ def _describe(source) -> str:
     return str(source)
 
 
-def _open(source, fields, chosen, func) -> xr.Dataset:
+def _open(source, fields, chosen, func, stress_sign=None) -> xr.Dataset:
     warned: list[tuple[str, str]] = []
     ds, chunk = _as_dataset(source, func, warned)
     # Multi-file sources were decoded file by file (units may differ); this is then a no-op.
@@ -235,7 +251,8 @@ def _open(source, fields, chosen, func) -> xr.Dataset:
 
     if picked and on_model_grid(picked[fields[0].key][1]):
         return assemble_on_model_grid(picked, fields, func, _describe(source), ds, warned)
-    return _assemble(picked, fields, func, _describe(source), dict(ds.attrs), warned)
+    return _assemble(picked, fields, func, _describe(source), dict(ds.attrs), warned,
+                     stress_sign=stress_sign)
 
 
 def _as_dataset(source, func, warned) -> tuple[xr.Dataset, bool]:
@@ -253,37 +270,35 @@ def _as_dataset(source, func, warned) -> tuple[xr.Dataset, bool]:
             f"DataArray. Fix: pass both components, e.g. {func}(xr.Dataset({{...}}))"
             f"{' or open_winds((u, v))' if func == 'open_winds' else ''}."
         )
+    if isinstance(source, (str, os.PathLike)) and _is_zarr(source):
+        return _open_zarr(source, func), True
     if isinstance(source, (list, tuple)) or (
-        isinstance(source, str) and any(c in source for c in "*?[") and "://" not in source
+        isinstance(source, str) and _is_pattern(source)
     ):
-        paths = sorted(glob.glob(source)) if isinstance(source, str) else list(source)
-        bad = [p for p in paths if not isinstance(p, (str, os.PathLike))]
-        if bad:
-            raise TypeError(
-                f"{func}: source: expected a list of paths, found items of type "
-                f"{sorted({type(p).__name__ for p in bad})}. Fix: pass paths only, or one Dataset."
-            )
-        paths = [os.fspath(p) for p in paths]
-        if not paths:
-            raise FileNotFoundError(
-                f"{func}: source: expected files matching {source!r}, found none. Fix: check the "
-                "pattern and the folder."
-            )
-        for p in paths:
-            _require_file(p, func)
+        paths = _expand_paths(source, func)
+        if len(paths) == 1 and _is_zarr(paths[0]):
+            return _open_zarr(paths[0], func), True
+        calendars: dict[str, list[str]] = {}
+
+        def prepare(d):
+            _note_calendar(d, calendars)
+            return _decode_time(d, warned)
+
         try:
             ds = xr.open_mfdataset(
-                paths, decode_times=False, preprocess=lambda d: _decode_time(d, warned),
+                paths, decode_times=False, preprocess=prepare,
                 combine="by_coords",
                 data_vars="minimal", coords="minimal", compat="override", join="exact",
                 chunks={},
             )
-        except ValueError as err:
+        except (ValueError, TypeError) as err:
+            _check_one_calendar(calendars, func)
             raise GridError(
                 f"{func}: source: expected files on one grid that continue each other in time, "
-                f"found a mismatch while combining {len(paths)} files ({err}). Fix: open them "
-                "separately, or regrid them onto one grid first."
+                f"found a mismatch while combining {len(paths)} files ({_short(err)}). Fix: "
+                "open them separately, or regrid them onto one grid first."
             ) from err
+        _check_one_calendar(calendars, func)
         return ds, False
     if isinstance(source, (str, os.PathLike)):
         text = os.fspath(source)
@@ -302,6 +317,98 @@ def _as_dataset(source, func, warned) -> tuple[xr.Dataset, bool]:
         f"{', or a tuple/dict of DataArrays' if func == 'open_winds' else ''}, found "
         f"{type(source).__name__}. Fix: pass one of those."
     )
+
+
+def _is_pattern(text: str) -> bool:
+    return any(c in text for c in "*?[") and "://" not in text
+
+
+def _is_zarr(path) -> bool:
+    """A Zarr store: a folder ending in .zarr, or any folder with Zarr metadata in it."""
+    if not isinstance(path, (str, os.PathLike)) or _is_pattern(os.fspath(path)):
+        return False
+    p = Path(path)
+    return p.is_dir() and (
+        p.suffix == ".zarr" or any((p / m).exists() for m in (".zmetadata", ".zgroup",
+                                                               "zarr.json"))
+    )
+
+
+def _open_zarr(path, func) -> xr.Dataset:
+    try:
+        import zarr  # noqa: F401  (only to give a clear error when it is missing)
+    except ImportError as err:
+        raise ImportError(
+            f"{func}: source: reading the Zarr store {os.fspath(path)!r} needs the 'zarr' "
+            "package, which is not installed. Fix: pip install zarr."
+        ) from err
+    try:
+        with warnings.catch_warnings():
+            # A store without consolidated metadata opens as well, only a little slower.
+            warnings.simplefilter("ignore", RuntimeWarning)
+            return xr.open_dataset(os.fspath(path), engine="zarr", chunks={}, decode_times=False)
+    except (OSError, ValueError, KeyError) as err:
+        raise ValueError(
+            f"{func}: source: expected a Zarr store xarray can open, could not open "
+            f"{os.fspath(path)!r} ({_short(err)}). Fix: check the store, or open it yourself "
+            "and pass the Dataset."
+        ) from err
+
+
+def _expand_paths(source, func) -> list[str]:
+    """Paths of a pattern, or of a list whose items are paths or patterns, in order, once each."""
+    items = [source] if isinstance(source, (str, os.PathLike)) else list(source)
+    bad = [p for p in items if not isinstance(p, (str, os.PathLike))]
+    if bad:
+        raise TypeError(
+            f"{func}: source: expected a list of paths, found items of type "
+            f"{sorted({type(p).__name__ for p in bad})}. Fix: pass paths only, or one Dataset."
+        )
+    paths: list[str] = []
+    for item in items:
+        text = os.fspath(item)
+        if _is_pattern(text):
+            found = sorted(glob.glob(text))
+            if not found:
+                raise FileNotFoundError(
+                    f"{func}: source: expected files matching {text!r}, found none. Fix: check "
+                    "the pattern and the folder."
+                )
+        else:
+            _require_file(text, func)
+            found = [text]
+        paths.extend(f for f in found if f not in paths)
+    if not paths:
+        raise FileNotFoundError(
+            f"{func}: source: expected at least one file, found an empty list. Fix: pass "
+            "paths or patterns."
+        )
+    return paths
+
+
+def _note_calendar(d: xr.Dataset, calendars: dict) -> None:
+    name = _time_name(d)
+    if name is None:
+        return
+    cal = str(d[name].attrs.get("calendar", "standard")).strip().lower()
+    # CF names the same calendar several ways.
+    cal = {"gregorian": "standard", "365_day": "noleap", "366_day": "all_leap"}.get(cal, cal)
+    calendars.setdefault(cal, []).append(str(d.encoding.get("source", "?")))
+
+
+def _check_one_calendar(calendars: dict, func) -> None:
+    if len(calendars) > 1:
+        found = "; ".join(f"'{c}' in {', '.join(Path(f).name for f in fs[:2])}"
+                          + (", ..." if len(fs) > 2 else "") for c, fs in calendars.items())
+        raise GridError(
+            f"{func}: source: expected files on one calendar, found {found}. Fix: open the "
+            "files of each calendar separately, or convert one set, e.g. "
+            "ds.convert_calendar('standard'), and write it out again."
+        )
+
+
+def _short(err) -> str:
+    return str(err).strip().splitlines()[0][:200] if str(err).strip() else type(err).__name__
 
 
 def _require_file(path, func) -> None:
@@ -368,9 +475,10 @@ def _lower(s) -> str:
 
 
 def _score(name, da: xr.DataArray, field: _Field) -> int:
-    if _lower(da.attrs.get("standard_name", "")) in field.standard_names:
+    std = _lower(da.attrs.get("standard_name", ""))
+    if std in field.standard_names or std in field.upward_standard_names:
         return 3
-    if _lower(name) in field.names:
+    if _lower(name) in field.names or _lower(name) in field.unsigned_names:
         return 2
     if _lower(da.attrs.get("long_name", "")) in field.long_names:
         return 1
@@ -550,10 +658,54 @@ def _unmask(da: xr.DataArray, steps: list[str], label: str) -> xr.DataArray:
     return out.where(np.abs(out) < FILL_SENTINEL)
 
 
-def _normalise_field(name, da: xr.DataArray, field: _Field, func: str, steps: list[str]):
+def _stress_sign(name, da: xr.DataArray, field: _Field, stress_sign, argname) -> tuple[float, str]:
+    """+1 for the stress of the air on the sea, -1 for the sea on the air, with a note."""
+    if stress_sign is not None:
+        return (1.0 if stress_sign == "downward" else -1.0), f"stress_sign='{stress_sign}' given"
+    std = _lower(da.attrs.get("standard_name", ""))
+    long = _lower(da.attrs.get("long_name", ""))
+    says_up = "upward" in long or "sea on the air" in long or "ocean on the atmosphere" in long
+    says_down = "downward" in long or "air on the sea" in long or "on the ocean" in long
+    if std in field.upward_standard_names:
+        if says_down:
+            return _unknown_sign(name, da, argname, "its standard_name says upward and its "
+                                 "long_name downward")
+        return -1.0, f"standard_name '{std}' is upward: sign flipped"
+    if std in field.standard_names:
+        if says_up:
+            return _unknown_sign(name, da, argname, "its standard_name says downward and its "
+                                 "long_name upward")
+        return 1.0, ""
+    if says_up and not says_down:
+        return -1.0, "long_name says upward: sign flipped"
+    if says_down and not says_up:
+        return 1.0, ""
+    if _lower(name) in field.unsigned_names or (says_up and says_down):
+        return _unknown_sign(name, da, argname, "it is a momentum flux with no standard_name "
+                             "saying upward or downward, and products differ")
+    return 1.0, ""
+
+
+def _unknown_sign(name, da, argname, why):
+    raise ValueError(
+        f"{argname}: expected a stress whose sign can be told (standard_name "
+        f"surface_downward_*_stress or surface_upward_*_stress), found standard_name "
+        f"{da.attrs.get('standard_name')!r}, long_name {da.attrs.get('long_name')!r}: {why}. "
+        f"Fix: say which it is, open_stress(..., stress_sign='downward') for the stress of the "
+        f"air on the sea or 'upward' for the sea on the air (command line: --stress-sign)."
+    )
+
+
+def _normalise_field(name, da: xr.DataArray, field: _Field, func: str, steps: list[str],
+                     stress_sign=None):
     argname = f"{func}: {field.key} (variable '{name}')"
     units = da.attrs.get("units")
     factor = si_factor(units, field.kind, argname=argname)
+    if field.kind == "stress":
+        sign, sign_note = _stress_sign(name, da, field, stress_sign, argname)
+        if sign_note:
+            steps.append(f"{field.out}: {sign_note}")
+        factor = factor * sign
     layout = grid_layout(da, argname=argname)
     time = _time_name(da)
     out = _unmask(da, steps, field.out)
@@ -604,7 +756,8 @@ def _normalise_field(name, da: xr.DataArray, field: _Field, func: str, steps: li
     return out, layout, renames
 
 
-def _assemble(picked, fields, func, described, global_attrs, warned) -> xr.Dataset:
+def _assemble(picked, fields, func, described, global_attrs, warned,
+              stress_sign=None) -> xr.Dataset:
     steps: list[str] = []
     outs = {}
     layouts = {}
@@ -612,7 +765,7 @@ def _assemble(picked, fields, func, described, global_attrs, warned) -> xr.Datas
         if field.key not in picked:
             continue
         name, da = picked[field.key]
-        out, layout, renames = _normalise_field(name, da, field, func, steps)
+        out, layout, renames = _normalise_field(name, da, field, func, steps, stress_sign)
         outs[field.key] = out
         layouts[field.key] = (name, layout, renames)
     first = fields[0].key

@@ -10,7 +10,7 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
-__all__ = ["write_netcdf", "PURPOSE"]
+__all__ = ["write_netcdf", "open_results", "PURPOSE"]
 
 #: What the results are for, written into every file.
 PURPOSE = (
@@ -24,6 +24,8 @@ def _prepare(ds: xr.Dataset) -> xr.Dataset:
 
     out = ds.copy()
     for name in list(out.variables):
+        if np.issubdtype(out[name].dtype, np.integer) and out[name].dtype.itemsize > 4:
+            out[name] = _as_int32(out[name], name)
         if out[name].dtype == bool:
             # NetCDF has no boolean type: store 0/1 and say so the CF way.
             out[name] = out[name].astype("int8").assign_attrs(
@@ -40,7 +42,54 @@ def _prepare(ds: xr.Dataset) -> xr.Dataset:
     out.attrs = {k: (int(v) if isinstance(v, (bool, np.bool_)) else v)
                  for k, v in ds.attrs.items() if v is not None}
     out.attrs.update(Conventions="CF-1.8", history=history, purpose=PURPOSE)
-    return out
+    # CF-1.8 section 2.6.2 asks for a title; name what the file holds when the caller gave none.
+    out.attrs.setdefault("title", "sverdrup_kit results: " + ", ".join(map(str, out.data_vars)))
+    for name in list(out.data_vars):
+        out[name] = out[name].transpose(*_cf_dimension_order(out, out[name].dims))
+    return _labels_as_auxiliary(out)
+
+
+def _labels_as_auxiliary(ds: xr.Dataset) -> xr.Dataset:
+    """Text labels of a dimension (basin names) as an auxiliary coordinate ``<dim>_name``.
+
+    CF-1.8 (section 1.3) defines coordinate variables as numeric; labels belong in an
+    auxiliary coordinate variable (section 6.1). Read back, ``ds.swap_dims(basin="basin_name")``
+    selects by name again.
+    """
+    renames = {}
+    for dim in ds.dims:
+        if dim in ds.coords and ds[dim].dtype.kind in "OUS" and f"{dim}_name" not in ds.variables:
+            renames[dim] = f"{dim}_name"
+    return ds.rename_vars(renames) if renames else ds
+
+
+def _as_int32(var: xr.DataArray, name: str) -> xr.DataArray:
+    """64-bit integers as int32: CF-1.8 (section 2.2) has no 64-bit integer type."""
+    info = np.iinfo(np.int32)
+    if var.size and (int(var.min()) < info.min or int(var.max()) > info.max):
+        raise ValueError(
+            f"ds: expected the integers of '{name}' to fit in 32 bits (CF-1.8 has no 64-bit "
+            f"integer type), found values from {int(var.min())} to {int(var.max())}. Fix: "
+            "store them as float64."
+        )
+    return var.astype(np.int32)
+
+
+def _axis_of(ds: xr.Dataset, dim: str) -> str | None:
+    """T, Z, Y or X for a dimension whose coordinate says so (axis or standard_name), else None."""
+    if dim not in ds.coords:
+        return None
+    if np.issubdtype(ds[dim].dtype, np.datetime64):
+        return "T"
+    attrs = ds[dim].attrs
+    by_name = {"time": "T", "latitude": "Y", "longitude": "X", "depth": "Z", "height": "Z"}
+    return attrs.get("axis") or by_name.get(attrs.get("standard_name", ""))
+
+
+def _cf_dimension_order(ds: xr.Dataset, dims: tuple) -> tuple:
+    """Dimensions in the order CF-1.8 (section 2.4) recommends: other dimensions, then T, Z, Y, X."""
+    rank = {"T": 1, "Z": 2, "Y": 3, "X": 4}
+    return tuple(sorted(dims, key=lambda d: rank.get(_axis_of(ds, d), 0)))
 
 
 def _compression(var: xr.DataArray) -> dict:
@@ -91,6 +140,14 @@ def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = Tru
         for name, var in out.data_vars.items()
         if np.issubdtype(var.dtype, np.number)
     }
+    # CF-1.8 section 2.5.1: coordinate variables hold no missing values, so no _FillValue.
+    for name in out.dims:
+        if name in out.coords:
+            encoding.setdefault(name, {})["_FillValue"] = None
+    for name, var in out.variables.items():
+        if np.issubdtype(var.dtype, np.datetime64):
+            # xarray would store whole-day times as int64, which CF-1.8 (section 2.2) lacks.
+            encoding.setdefault(name, {})["dtype"] = "float64"
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
     os.close(fd)
     try:
@@ -105,3 +162,25 @@ def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = Tru
             os.remove(tmp)
         raise
     return path
+
+
+def open_results(path: str | os.PathLike, **kwargs) -> xr.Dataset:
+    """Open a results file written by :func:`write_netcdf` with its labels back in place.
+
+    On disk, text labels of a dimension (basin names) are the auxiliary coordinate
+    ``<dim>_name`` (CF coordinate variables are numeric); here they become the dimension's
+    coordinate again, so that ``ds.interior_transport.sel(basin="atlantic")`` works as on the
+    result that was written. Other keyword arguments go to :func:`xarray.open_dataset`.
+
+    Examples
+    --------
+    >>> ds = open_results("results.nc")  # doctest: +SKIP
+    >>> ds.interior_transport.sel(basin="atlantic").sel(lat=26.5, method="nearest")  # doctest: +SKIP
+    """
+    ds = xr.open_dataset(path, **kwargs)
+    for name in list(ds.coords):
+        dim = name[:-5] if name.endswith("_name") else None
+        if dim and ds[name].dims == (dim,) and dim not in ds.coords:
+            ds = ds.swap_dims({dim: name}).rename({name: dim})
+    return ds
+

@@ -881,12 +881,14 @@ def _assemble_geostrophic(total, cum, counts, span_e, span_w, basins, refs, ref_
                 "long_name": "land or empty T/S columns crossed inside the span "
                              "(pairs joined across them)", "units": "1"}),
             "span_east_lon": (("basin", lat), _user_lon(per_row(span_e), user_lon), {
-                "long_name": "longitude of the easternmost station", "units": "degrees_east"}),
+                "long_name": "longitude of the easternmost station", "units": "degrees_east",
+                "standard_name": "longitude"}),
             "span_west_lon": (("basin", lat), _user_lon(per_row(span_w), user_lon), {
-                "long_name": "longitude of the westernmost station", "units": "degrees_east"}),
+                "long_name": "longitude of the westernmost station", "units": "degrees_east",
+                "standard_name": "longitude"}),
             "sverdrup_lat": ((lat,), np.where(inside, sv_lat, np.nan)[inv_lat], {
                 "long_name": "latitude of the Sverdrup row whose span this row takes",
-                "units": "degrees_north"}),
+                "units": "degrees_north", "standard_name": "latitude"}),
             "row_status": (("basin", lat), per_row(status).astype(np.int8), {
                 "long_name": "status of the Sverdrup row whose span this row takes",
                 "comment": "0 valid; other values as in the Sverdrup result's row_status; -1 "

@@ -74,7 +74,7 @@ import scipy.sparse.linalg as spla
 import xarray as xr
 
 from .. import constants
-from .._apply import apply_grid_kernel
+from .._apply import whole_fields
 from ..geometry.coords import check_same_grid, from_canonical, require_dataarray, to_canonical
 from ..geometry.grid import SphericalGrid
 from ..io.units import to_si
@@ -331,12 +331,20 @@ class _Operator:
 
     def solve(self, forcing: np.ndarray, island_forcing: np.ndarray) -> np.ndarray:
         """psi (m3 s-1) at every point of the unpadded grid for curl/rho0 on the ocean points."""
+        return self.solve_with_islands(forcing, island_forcing)[0]
+
+    def solve_with_islands(self, forcing: np.ndarray, island_forcing: np.ndarray):
+        """psi (m3 s-1) on the unpadded grid, and the constant of each island (m3 s-1).
+
+        The constants come from the unknowns, not from grid points: an island may lie wholly
+        in the land frame (beyond a grid edge short of a pole whose last row is all ocean).
+        """
         rhs = np.concatenate([forcing.ravel()[self._ocean_unpadded()], island_forcing])
         if self.lu is None:
             self.lu = spla.splu(self.M, permc_spec="COLAMD")
         x = self.lu.solve(rhs)
         full = self.E @ x
-        return self._unpad(full)
+        return self._unpad(full), x[x.size - self.n_islands:]
 
     def _ocean_unpadded(self):
         ny, nx = self.shape0
@@ -549,8 +557,19 @@ _ATTRS = {
 }
 
 
-def _solution_attrs(op, *, r, A_H, boundary, islands, rho0, depth, rotation, island_psi,
-                    island_how):
+def _island_variable(values) -> xr.DataArray:
+    """The constant of each island (1e6 m3 s-1) along ``island``, numbered as in land_mass."""
+    n = values.shape[-1]
+    number = xr.DataArray(np.arange(1, n + 1, dtype=np.int32), dims="island",
+                          attrs={"long_name": "island number (the land_mass value)"})
+    return xr.DataArray(values, dims=values.dims if isinstance(values, xr.DataArray) else
+                        ("island",)).assign_coords(island=number).assign_attrs(
+        long_name="streamfunction on each island", units="1e6 m3 s-1",
+        comment="island k is land_mass k; an island in the land beyond a grid edge that stops "
+        "short of a pole (an all-ocean last row) has no point on the grid")
+
+
+def _solution_attrs(op, *, r, A_H, boundary, islands, rho0, depth, rotation, island_how):
     return dict(
         title="steady linear barotropic vorticity equation",
         equation="r lap(psi) - A_H lap(lap(psi)) + beta dpsi/dx = curl(tau)/rho0",
@@ -563,7 +582,6 @@ def _solution_attrs(op, *, r, A_H, boundary, islands, rho0, depth, rotation, isl
             "= wind circulation/rho0"
         ),
         n_islands=op.n_islands,
-        island_streamfunction=np.asarray(island_psi) / constants.SVERDRUP_IN_M3_S,
         island_wind_circulation_from="; ".join(
             f"island {k}: {h}" for k, h in enumerate(island_how, start=1)) or "no islands",
         rho0=rho0,
@@ -632,7 +650,8 @@ def solve_basin(
         ``barotropic_streamfunction`` (1e6 m3 s-1), ``barotropic_eastward_transport``/``barotropic_northward_transport``
         (m2 s-1), ``barotropic_eastward_velocity``/``barotropic_northward_velocity`` (m s-1), ``sverdrup_residual``
         (m s-2), ``land_mass``, ``wind_stress_curl`` (N m-3), ``coriolis_parameter`` and
-        ``beta`` (y); parameters, widths ``delta_S``/``delta_M`` (m) and timings in attrs.
+        ``beta`` (y), ``island_streamfunction`` (island; 1e6 m3 s-1) when there are islands;
+        parameters, widths ``delta_S``/``delta_M`` (m) and timings in attrs.
 
     Notes
     -----
@@ -672,10 +691,12 @@ def solve_basin(
                 f"{[t.shape for t in stress]}. Fix: pass the stress on the grid of curl."
             )
     island_forcing, how = _island_forcing_mixed(op, c, ocean, rho0, stress)
-    psi = op.solve(np.where(ocean, c, 0.0) / rho0, island_forcing)
+    psi, island_psi = op.solve_with_islands(np.where(ocean, c, 0.0) / rho0, island_forcing)
     coords = {
-        "y": ("y", y, dict(units="m", long_name="northward distance", axis="Y")),
-        "x": ("x", x, dict(units="m", long_name="eastward distance", axis="X")),
+        # No axis attribute: CF-aware readers take axis X/Y without a grid mapping for
+        # longitude/latitude, which distances in a basin are not.
+        "y": ("y", y, dict(units="m", long_name="northward distance")),
+        "x": ("x", x, dict(units="m", long_name="eastward distance")),
     }
     beta2d = np.broadcast_to(betas[:, None], c.shape)
     curl_si = np.where(ocean, c, np.nan)
@@ -687,10 +708,11 @@ def solve_basin(
                                 dict(standard_name="coriolis_parameter", units="s-1"))
     ds["beta"] = ("y", betas, dict(long_name="meridional gradient of the Coriolis parameter",
                                    units="m-1 s-1"))
+    if op.n_islands:
+        ds["island_streamfunction"] = _island_variable(island_psi / constants.SVERDRUP_IN_M3_S)
     rotation = "beta-plane" if beta > 0 else ("f-plane" if f0 != 0 else "none")
     ds.attrs.update(_solution_attrs(op, r=r, A_H=A_H, boundary=boundary, islands=islands,
-                                    rho0=rho0, depth=depth, rotation=rotation,
-                                    island_psi=_island_values(op, psi), island_how=how))
+                                    rho0=rho0, depth=depth, rotation=rotation, island_how=how))
     ds.attrs.update(beta=float(beta), f0=float(f0), **_widths(r, A_H, beta))
     return ds
 
@@ -724,20 +746,14 @@ def _island_forcing_mixed(op, c, ocean, rho0, stress=None):
     out, how = [], []
     for k in range(1, op.n_islands + 1):
         on = lid == k
-        if np.all(np.isfinite(given[on])):
+        # An island wholly beyond a grid edge has no curl of its own on the grid.
+        if on.any() and np.all(np.isfinite(given[on])):
             out.append(np.sum(given[on] * area[on]) / np.sum(area[on]) / rho0)
             how.append("curl over the island")
         else:
             out.append(ring[k - 1])
             how.append("curl of the ocean around the island")
     return np.array(out), how
-
-
-def _island_values(op, psi):
-    if not op.n_islands:
-        return np.zeros(0)
-    lid = op.island_ids()
-    return np.array([psi[lid == k][0] for k in range(1, op.n_islands + 1)])
 
 
 def _ocean_mask(c, ocean_mask):
@@ -823,8 +839,9 @@ def solve_barotropic(
         ocean_barotropic_streamfunction), ``barotropic_eastward_transport``/``barotropic_northward_transport``
         (m2 s-1), ``barotropic_eastward_velocity``/``barotropic_northward_velocity`` (m s-1), ``sverdrup_residual``
         (m s-2), ``land_mass`` (-1 ocean, 0 main coast, k island k), ``wind_stress_curl``,
-        ``coriolis_parameter`` and ``beta`` (lat). Attributes: the parameters,
-        ``island_streamfunction`` (1e6 m3 s-1, island k at position k - 1),
+        ``coriolis_parameter`` and ``beta`` (lat), and, when there are islands,
+        ``island_streamfunction`` (..., island): the constant of island k (1e6 m3 s-1, the
+        value of ``land_mass`` k). Attributes: the parameters,
         ``island_wind_circulation_from`` (how each island was forced), ``n_unknowns`` and the
         seconds spent assembling and factorising.
 
@@ -886,10 +903,21 @@ def solve_barotropic(
     stresses = _stresses(wind_stress, curl, lay)
     dims = (lay.lat_name, lay.lon_name)
     beta2d = np.broadcast_to(beta[:, None], grid.shape)
-    psi, U, V, resid = apply_grid_kernel(
-        _solve_kernel, c, *stresses, dims=dims, n_out=4,
+    # apply_ufunc directly: the island constants add a dimension the grid bridge cannot.
+    order = list(c.dims)
+    outs = xr.apply_ufunc(
+        _solve_kernel,
+        *(whole_fields(a, dims) for a in (c, *stresses)),
+        input_core_dims=[list(dims)] * (1 + len(stresses)),
+        output_core_dims=[list(dims)] * 4 + [["island"]],
+        dask="parallelized",
+        output_dtypes=[np.float64] * 5,
+        dask_gufunc_kwargs={"output_sizes": {"island": op.n_islands}},
         kwargs=dict(op=op, ocean=ocean, rho0=rho0, beta2d=beta2d),
+        keep_attrs=False,
     )
+    psi, U, V, resid = (o.transpose(*order) for o in outs[:4])
+    island_psi = outs[4]
     land = op.island_ids()
     ds = xr.Dataset(
         {
@@ -908,21 +936,11 @@ def solve_barotropic(
                                               "parameter", units="m-1 s-1")),
         }
     )
-    if op.n_islands:
-        # One point of each island carries its constant.
-        first = [np.argwhere(land == k)[0] for k in range(1, op.n_islands + 1)]
-        at = {d: xr.DataArray([p[i] for p in first], dims="island") for i, d in enumerate(dims)}
-        ds["island_streamfunction"] = ds.barotropic_streamfunction.isel(at).drop_vars(
-            list(dims)).assign_coords(island=np.arange(1, op.n_islands + 1)).assign_attrs(
-            long_name="streamfunction on each island", units="1e6 m3 s-1")
     ds = from_canonical(ds, lay, curl)
-    lazy = ds.barotropic_streamfunction.chunks is not None
-    island_psi = (np.zeros(0) if not op.n_islands
-                  else "see variable island_streamfunction" if lazy
-                  else ds.island_streamfunction.values)
+    if op.n_islands:
+        ds["island_streamfunction"] = _island_variable(island_psi / constants.SVERDRUP_IN_M3_S)
     ds.attrs.update(_solution_attrs(op, r=r, A_H=A_H, boundary=boundary, islands=islands,
                                     rho0=rho0, depth=depth, rotation=rotation,
-                                    island_psi=island_psi,
                                     island_how=_island_how(op, ocean, stresses, c, lay)))
     ds.attrs["reference_latitude"] = lat0
     return ds
@@ -943,12 +961,14 @@ def _island_how(op, ocean, stresses, c, lay):
 
 
 def _solve_kernel(curl, *stress, op, ocean, rho0, beta2d):
-    """psi (m3 s-1), U, V (m2 s-1) and the Sverdrup residual (m s-2) for each field."""
+    """psi (m3 s-1), U, V (m2 s-1), the Sverdrup residual (m s-2) and the island constants
+    (m3 s-1, last axis) for each field."""
     c = np.asarray(curl, dtype=np.float64)
     shape = c.shape
     flat = c.reshape((-1,) + shape[-2:])
     st = [np.asarray(t, dtype=np.float64).reshape(flat.shape) for t in stress]
     out = np.full((4,) + flat.shape, np.nan)
+    islands = np.full((flat.shape[0], op.n_islands), np.nan)
     for k, field in enumerate(flat):
         if not np.all(np.isfinite(field[ocean])):
             raise ValueError(
@@ -958,13 +978,14 @@ def _solve_kernel(curl, *stress, op, ocean, rho0, beta2d):
             )
         pair = (st[0][k], st[1][k]) if st else None
         island_forcing, _ = _island_forcing_mixed(op, field, ocean, rho0, pair)
-        psi = op.solve(np.where(ocean, field, 0.0) / rho0, island_forcing)
+        psi, islands[k] = op.solve_with_islands(np.where(ocean, field, 0.0) / rho0,
+                                                island_forcing)
         dpx, dpy = op.derivatives(psi)
         out[0, k] = psi
         out[1, k] = np.where(ocean, -dpy, np.nan)
         out[2, k] = np.where(ocean, dpx, np.nan)
         out[3, k] = beta2d * out[2, k] - np.where(ocean, field, np.nan) / rho0
-    return tuple(o.reshape(shape) for o in out)
+    return (*(o.reshape(shape) for o in out), islands.reshape(shape[:-2] + (op.n_islands,)))
 
 
 def _stresses(wind_stress, curl, lay):
@@ -1144,14 +1165,16 @@ def boundary_current(
     row = dims[0]
     coords = {row: solution[row]}
     units = solution[dims[1]].attrs.get("units", "")
+    # On the sphere the coast positions are longitudes; say so (CF-1.8 section 4.2).
+    where = {"standard_name": "longitude"} if units == "degrees_east" else {}
     ds = xr.Dataset(
         {
             "western_coast": (row, out["western_coast"],
                               dict(long_name="position of the western coast (wall point)",
-                                   units=units)),
+                                   units=units, **where)),
             "eastern_coast": (row, out["eastern_coast"],
                               dict(long_name="position of the eastern coast (wall point)",
-                                   units=units)),
+                                   units=units, **where)),
             "peak_northward_velocity": (row, out["peak_northward_velocity"],
                                         dict(long_name="peak depth-mean northward velocity of "
                                              "the western boundary current", units="m s-1")),

@@ -317,8 +317,10 @@ def stommel_basin(
     tau = -stress_amplitude * np.cos(k * y)
     curl = -stress_amplitude * k * np.sin(k * y)
     coords = {
-        "y": ("y", y, dict(units="m", long_name="northward distance", axis="Y")),
-        "x": ("x", x, dict(units="m", long_name="eastward distance", axis="X")),
+        # No axis attribute: CF-aware readers take axis X/Y without a grid mapping for
+        # longitude/latitude, which distances in a basin are not.
+        "y": ("y", y, dict(units="m", long_name="northward distance")),
+        "x": ("x", x, dict(units="m", long_name="eastward distance")),
     }
     dims = ("y", "x")
     ds = xr.Dataset(

@@ -14,16 +14,26 @@ from .operators import curl_on_sphere
 
 __all__ = ["ekman", "DEFAULT_EQUATORIAL_HALF_WIDTH"]
 
-#: Half-width in degrees of the band around the equator where f -> 0 and the Ekman (and
-#: Sverdrup) balances are not used (common practice: 2 to 5 degrees).
+#: Half-width in degrees of the band around the equator left empty (common practice: 2 to 5
+#: degrees). The Ekman transport goes as 1/f there; the Sverdrup V = curl/(rho0 beta) stays
+#: finite, but its split into Ekman and geostrophic parts does not, and equatorial dynamics
+#: (undercurrents, nonlinearity, friction) break the balance.
 DEFAULT_EQUATORIAL_HALF_WIDTH = 3.0
 
 
 def _band_reason(band: float) -> str:
     return (
-        f"missing within {band:g} degrees of the equator, where f -> 0 and the Ekman balance "
-        "does not hold"
+        f"missing within {band:g} degrees of the equator, where the Ekman transport, which "
+        "goes as 1/f, has no meaning and equatorial dynamics (undercurrents, nonlinearity, "
+        "friction) take over"
     )
+
+
+def _bare(da: xr.DataArray) -> xr.DataArray:
+    """``da`` without the attributes it inherited from the stress (its drag law, cell_methods)."""
+    out = da.copy(deep=False)
+    out.attrs = {}
+    return out
 
 
 def ekman(
@@ -95,10 +105,13 @@ def ekman(
     tx = to_si(taux, "stress", argname="taux", default="Pa").astype(np.float64)
     ty = to_si(tauy, "stress", argname="tauy", default="Pa").astype(np.float64)
 
-    lat = taux[lay.lat_name].astype(np.float64)
+    # A bare copy of the latitudes: the coordinate's attributes (axis, units) must not reach
+    # the transports through the arithmetic.
+    lat = xr.DataArray(taux[lay.lat_name].values.astype(np.float64), dims=(lay.lat_name,),
+                       coords={lay.lat_name: taux[lay.lat_name]})
     f = (2.0 * omega * np.sin(np.deg2rad(lat))).where(np.abs(lat) >= equatorial_half_width)
-    ue = ty / (rho0 * f)
-    ve = -tx / (rho0 * f)
+    ue = _bare(ty / (rho0 * f))
+    ve = _bare(-tx / (rho0 * f))
     pump = curl_on_sphere(tx / (rho0 * f), ty / (rho0 * f), grid=grid, names=("taux", "tauy"))
     reason = _band_reason(equatorial_half_width)
     common = dict(rho0=rho0, equatorial_half_width=equatorial_half_width, comment=reason)

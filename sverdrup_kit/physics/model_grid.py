@@ -567,9 +567,11 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
             "long_name": "status of the Sverdrup interior transport of each basin band",
             **flag}),
         "eastern_coast_lon": (("basin", "lat"), plan.east_lon, {
-            "long_name": "longitude of the band's eastern coast", "units": "degrees_east"}),
+            "long_name": "longitude of the band's eastern coast", "units": "degrees_east",
+            "standard_name": "longitude"}),
         "western_coast_lon": (("basin", "lat"), plan.west_lon, {
-            "long_name": "longitude of the band's western end", "units": "degrees_east"}),
+            "long_name": "longitude of the band's western end", "units": "degrees_east",
+            "standard_name": "longitude"}),
         "basin_id": (tuple(dims), bid, {
             "long_name": "ocean basin number",
             "flag_values": np.arange(len(names), dtype=np.int32),

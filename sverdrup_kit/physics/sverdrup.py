@@ -8,6 +8,8 @@ fill, the curl (:func:`~sverdrup_kit.physics.operators.curl_on_sphere`) and the 
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 import xarray as xr
 
@@ -182,8 +184,11 @@ def sverdrup_transport(
     rho0 : float, optional
         Reference sea-water density, kg m-3.
     equatorial_half_width : float, optional
-        Half-width in degrees of the band around the equator left empty (f -> 0), the same
-        default as :func:`~sverdrup_kit.physics.ekman.ekman`.
+        Half-width in degrees of the band around the equator left empty, the same default as
+        :func:`~sverdrup_kit.physics.ekman.ekman`. V itself has no f and stays finite there;
+        the band is left out because the split into Ekman and geostrophic parts (both as
+        1/f) fails and equatorial dynamics (undercurrents, nonlinearity, friction) break the
+        balance.
     island_min_area_km2 : float, optional
         km2. Land bodies smaller than this are *small islands*: the integral runs across them
         with the stress filled in from the surrounding ocean (nearest-ocean averaging), so
@@ -422,14 +427,37 @@ def sverdrup_transport(
                     threshold=gyre_threshold_sv),
     )
 
-    ds = _assemble(
-        curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
-        taux, rho0=rho0, band=equatorial_half_width, island_min_area_km2=island_min_area_km2,
-        continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km, fill_gaps=fill_gaps,
-        given_mask=ocean_mask is not None or mask_from_geometry,
-    )
+    settings = _Settings(rho0, equatorial_half_width, island_min_area_km2, continent_min_area_km2,
+                         min_width_km, fill_gaps,
+                         given_mask=ocean_mask is not None or mask_from_geometry)
+    fields = dict(curl=curl, v=v, psi=psi, transport=transport, crossings=crossings, count=count)
+    ds = _assemble(fields, plan, bid, names, lay, taux, settings)
     return _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, taux,
                         tx, gyre_threshold_sv=gyre_threshold_sv)
+
+
+@dataclass(frozen=True)
+class _Settings:
+    """The options of one call, recorded in the result's attributes."""
+
+    rho0: float
+    equatorial_half_width: float
+    island_min_area_km2: float
+    continent_min_area_km2: float
+    min_width_km: float
+    fill_gaps: bool
+    given_mask: bool
+
+    def attrs(self) -> dict:
+        return dict(
+            rho0=self.rho0,
+            equatorial_half_width=self.equatorial_half_width,
+            island_min_area_km2=self.island_min_area_km2,
+            continent_min_area_km2=self.continent_min_area_km2,
+            min_width_km=self.min_width_km,
+            fill_gaps=int(bool(self.fill_gaps)),
+            land_mask_from="ocean_mask argument" if self.given_mask else "missing stress values",
+        )
 
 
 def _check_geometry(geometry, grid):
@@ -528,9 +556,12 @@ def _to_user_lon(x, original_lon):
     return np.where(np.isfinite(x), base + np.mod(x - base, 360.0), np.nan)
 
 
-def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid, lay,
-              original, *, rho0, band, island_min_area_km2, continent_min_area_km2, min_width_km,
-              fill_gaps, given_mask):
+def _assemble(fields, plan, bid, names, lay, original, settings: _Settings):
+    """The result Dataset from the computed ``fields`` (curl, v, psi, transport, crossings,
+    count) and the row plan, on the user's grid and order (``original``'s)."""
+    curl, v, psi = fields["curl"], fields["v"], fields["psi"]
+    transport, crossings, count = fields["transport"], fields["crossings"], fields["count"]
+    band = settings.equatorial_half_width
     lat, lon = lay.lat_name, lay.lon_name
     hw = (lat, lon)
     basin = xr.DataArray(np.array(names, dtype=object), dims=("basin",), name="basin",
@@ -593,12 +624,12 @@ def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid,
             }),
             "eastern_coast_lon": (("basin", lat), _to_user_lon(plan.east_lon, user_lon), {
                 "long_name": "longitude of the eastern coast where the integral starts",
-                "units": "degrees_east",
+                "units": "degrees_east", "standard_name": "longitude",
                 "comment": "cell face; NaN where the row has no eastern coast or no ocean",
             }),
             "western_coast_lon": (("basin", lat), _to_user_lon(plan.west_lon, user_lon), {
                 "long_name": "longitude of the western boundary where the integral ends",
-                "units": "degrees_east",
+                "units": "degrees_east", "standard_name": "longitude",
                 "comment": "cell face; where a row is split by large islands, the western face "
                 "of its westernmost run",
             }),
@@ -607,13 +638,7 @@ def _assemble(curl, v, psi, transport, crossings, count, plan, bid, names, grid,
     )
     ds = from_canonical(ds, lay, original)
     ds.attrs.update(
-        rho0=rho0,
-        equatorial_half_width=band,
-        island_min_area_km2=island_min_area_km2,
-        continent_min_area_km2=continent_min_area_km2,
-        min_width_km=min_width_km,
-        fill_gaps=int(bool(fill_gaps)),
-        land_mask_from="ocean_mask argument" if given_mask else "missing stress values",
+        settings.attrs(),
         small_islands="integrated across, with stress filled by nearest-ocean averaging",
         marginal_seas="runs cut off from the widest run of a basin row by a continent are not "
         "counted (integration_class 2)",

@@ -92,7 +92,10 @@ _SVERDRUP_UNITS = {"1e6 m3 s-1": 1.0, "1e6 m3/s": 1.0, "sverdrup": 1.0, "sverdru
 #: How each row_status meaning is named on figures and how its region is shaded: hatching on a
 #: pale neutral ground, so that it cannot be mistaken for a value of a diverging colour map.
 _REASONS = {
-    "equatorial_band": _Shade("equatorial band (f \u2192 0)", "#ececec", "...."),
+    # V = curl/(rho0 beta) stays finite at the equator; the Ekman part (1/f) and equatorial
+    # dynamics are what fail there.
+    "equatorial_band": _Shade("equatorial band (Ekman ~ 1/f, equatorial dynamics)", "#ececec",
+                              "...."),
     "no_eastern_coast": _Shade("no eastern coast", "#ececec", "\\\\\\"),
     "too_narrow": _Shade("basin too narrow", "#ececec", "xxxx"),
     "outside": _Shade("outside the basins", "#f7f7f7", "||||"),
@@ -623,7 +626,7 @@ def map_field(
     title, label : str, optional
         Axes title; colour-bar label (default: long_name and units of ``data``).
     missing_label : str, optional
-        Legend name of ocean cells without data (e.g. "equatorial band (f → 0)").
+        Legend name of ocean cells without data (e.g. "no eastern coast").
     to_per_year : bool
         Show a velocity in m s-1 as m yr-1.
 
@@ -1207,7 +1210,7 @@ def _time_labels(time: xr.DataArray) -> list[str]:
 
 
 def plot_hovmoller(data, *, basin=None, row_status=None, width="column", cmap=None,
-                   robust: float = 98.0, vmax=None, title=None, label=None):
+                   robust: float = 98.0, vmax=None, title=None, label=None, adjusted=None):
     """Latitude-time (Hovmoller) diagram of a seasonal cycle.
 
     Parameters
@@ -1224,6 +1227,10 @@ def plot_hovmoller(data, *, basin=None, row_status=None, width="column", cmap=No
     width : "column", "page" or float
     cmap, robust, vmax, label, title
         As in :func:`map_field`.
+    adjusted : xarray.DataArray (basin, lat), optional
+        ``sverdrup_adjusted`` of :func:`~sverdrup_kit.pipeline.diagnose` at the time scale of
+        the data's steps: a strip along each panel's right edge shows which rows had time to
+        adjust to Sverdrup balance (:func:`~sverdrup_kit.plotting.adjustment.mark_adjusted_rows`).
 
     Returns
     -------
@@ -1305,6 +1312,11 @@ def plot_hovmoller(data, *, basin=None, row_status=None, width="column", cmap=No
                                    edgecolor="0.35", lw=0, zorder=0.5)
                         handles.setdefault(shade.label, shade.patch())
                         spans.append((st_lat[i0] - dl, st_lat[i1] + dl))
+            if adjusted is not None and b is not None and b in [str(x) for x in
+                                                                adjusted["basin"].values]:
+                from .adjustment import mark_adjusted_rows
+
+                mark_adjusted_rows(ax, adjusted.sel(basin=b), fs=fs, handles=handles)
             finite_rows = np.isfinite(vals).any(axis=1)
             if finite_rows.any():
                 pad = np.median(np.diff(lat)) if lat.size > 1 else 1.0
@@ -1376,7 +1388,7 @@ def save_standard_figures(data: xr.Dataset, folder, *, width="page", dpi: int = 
     -------
     list of pathlib.Path
         Files written: wind_stress, wind_stress_curl, ekman_pumping, streamfunction,
-        transport, seasonal_transport (those the data allow).
+        transport, seasonal_transport, crossing_time (those the data allow).
     """
     if not isinstance(data, xr.Dataset):
         raise TypeError(f"data: expected an xarray.Dataset, found {type(data).__name__}. "
@@ -1394,9 +1406,19 @@ def save_standard_figures(data: xr.Dataset, folder, *, width="page", dpi: int = 
     if "interior_transport" in data:
         jobs.append(("transport", partial(plot_transport, data, width=width)))
     if "interior_transport_by_time" in data:
+        by_time = data["interior_transport_by_time"]
+        flags, scale = data.get("sverdrup_adjusted"), by_time.attrs.get("adjustment_time_scale")
+        if flags is not None and scale in flags["time_scale"].values:
+            flags = flags.sel(time_scale=scale)
+        else:
+            flags = None
         jobs.append(("seasonal_transport", partial(
-            plot_hovmoller, data["interior_transport_by_time"],
-            row_status=data.get("row_status"), width=width)))
+            plot_hovmoller, by_time, row_status=data.get("row_status"), width=width,
+            adjusted=flags)))
+    if "basin_crossing_time" in data:
+        from .adjustment import plot_crossing_time
+
+        jobs.append(("crossing_time", partial(plot_crossing_time, data, width=width)))
     paths = []
     for stem, draw in jobs:
         fig, _ = draw()

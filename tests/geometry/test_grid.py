@@ -18,7 +18,7 @@ def test_coriolis_parameter_matches_gsw():
 
 @pytest.mark.parametrize(
     "lat, f, beta",
-    # REFERENCES.md table, derived from Omega = 7.292115e-5 and R = 6.371e6.
+    # Derived from Omega = 7.292115e-5 rad/s (Groten 2004, J. Geodesy 77) and R = 6.371e6 m.
     [(26.5, 6.5075e-5, 2.0487e-11), (30.0, 7.2921e-5, 1.9825e-11), (45.0, 1.0313e-4, 1.6187e-11)],
 )
 def test_f_and_beta_hand_values(lat, f, beta):

@@ -12,22 +12,24 @@ from sverdrup_kit.physics.boundary_layers import (
     stommel_width,
 )
 
-BETA_30N = 1.9825e-11  # REFERENCES.md table, derived from Omega and R
+BETA_30N = 1.9825e-11  # derived: 2 Omega cos(30N)/R, Omega = 7.292115e-5 (Groten 2004), R = 6.371e6
 
 
 def test_stommel_width_at_30n():
-    # REFERENCES.md: delta_S = r/beta, 50 km for r = 1e-6 s-1 at 30N.
+    # Stommel (1948), Trans. AGU 29, 202-206: delta_S = r/beta, 50 km for r = 1e-6 s-1 at 30N.
     assert stommel_width(1e-6, BETA_30N) == pytest.approx(50.4e3, rel=1e-3)
 
 
 @pytest.mark.parametrize("A_H, km", [(1e3, 36.9), (5e3, 63.2), (1e4, 79.6)])
 def test_munk_width_at_30n(A_H, km):
-    # REFERENCES.md (derived): delta_M = (A_H/beta)^(1/3) at 30N, no factor pi.
+    # Munk (1950), J. Meteor. 7, 79-93: delta_M = (A_H/beta)^(1/3) at 30N, no factor pi
+    # (values derived).
     assert munk_width(A_H, BETA_30N) / 1e3 == pytest.approx(km, abs=0.05)
 
 
 def test_munk_layer_landmarks():
-    # REFERENCES.md (derived): no-slip peak at 1.209 delta, first reversal at 3.628 delta;
+    # Derived from Munk's (1950, J. Meteor. 7, 79-93) no-slip layer: peak at 1.209 delta,
+    # first reversal at 3.628 delta;
     # free-slip reversal at 4 pi/(3 sqrt 3) = 2.418 (derived here from the same solution).
     assert munk_peak_distance() == pytest.approx(1.209, abs=5e-4)
     assert munk_edge_distance() == pytest.approx(3.628, abs=5e-4)
@@ -62,7 +64,7 @@ def test_munk_layer_solves_its_equation(boundary):
 
 
 def test_munk_layer_peak_and_reversal_on_the_profile():
-    # REFERENCES.md (derived): 1.209 and 3.628 delta_M, found on a fine profile.
+    # Derived from Munk (1950), J. Meteor. 7: 1.209 and 3.628 delta_M, found on a fine profile.
     ds = munk_boundary_layer(np.linspace(0, 5e5, 50001), A_H=1e3, beta=BETA_30N)
     d = ds.attrs["delta_M"]
     v = ds.barotropic_northward_velocity.values
@@ -85,7 +87,8 @@ def stommel_residual(ds):
 
 
 def test_stommel_closed_form_solves_the_stommel_equation():
-    # Stommel (1948), the equation in REFERENCES.md: residual of centred differences on a fine
+    # Stommel (1948), Trans. AGU 29, 202-206, r lap(psi) + beta psi_x = curl/rho0: residual
+    # of centred differences on a fine
     # grid is second-order small, and psi vanishes on all four walls.
     x = np.linspace(0, 2e6, 2001)
     y = np.linspace(0, 2e6, 401)

@@ -16,7 +16,8 @@ def field(values, lat, lon, units="Pa"):
 
 
 def test_ekman_transport_hand_value_at_30n():
-    # REFERENCES.md: tau = 0.1 Pa at 30N gives 1.338 m2/s, to the right of the stress in the
+    # Derived from Ekman (1905), Ark. Mat. Astron. Fys. 2(11), M = tau/(rho0 f): tau = 0.1 Pa at
+    # 30N gives 1.338 m2/s, to the right of the stress in the
     # northern hemisphere (Ekman 1905).
     lat = np.array([-30.0, 30.0])
     lon = np.arange(0, 360, 30.0)
@@ -30,7 +31,8 @@ def test_ekman_transport_hand_value_at_30n():
 
 
 def test_ekman_pumping_hand_value_for_a_curl_at_30n():
-    # REFERENCES.md: curl = 1e-7 N/m3 at 30N gives w = curl/(rho0 f) = 1.34e-6 m/s
+    # Derived from Ekman (1905) and Gill (1982), Atmosphere-Ocean Dynamics, section 9.2:
+    # curl = 1e-7 N/m3 at 30N gives w = curl/(rho0 f) = 1.34e-6 m/s
     # (42 m/yr). A field tauy = a*lam has curl a/(R cos phi) and no beta term (taux = 0).
     lat = np.arange(20.0, 40.1, 0.5)
     lon = np.arange(0, 360, 1.0)

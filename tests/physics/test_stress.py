@@ -54,7 +54,7 @@ def cd(speed, drag):
 @pytest.mark.parametrize(
     "drag, speed, expected",
     [
-        # derived from Large & Pond (1981) eq. for 11 <= U <= 25 (REFERENCES.md)
+        # derived from Large & Pond (1981), J. Phys. Oceanogr. 11, 324-336, 11 <= U <= 25 m/s
         ("large-pond-1981", 10.0, 1.20e-3),
         ("large-pond-1981", 15.0, 1.465e-3),
         ("large-pond-1981", 20.0, 1.79e-3),
@@ -62,19 +62,21 @@ def cd(speed, drag):
         # held below 4 m/s and above 25 m/s: our documented choice, values derived from LP81
         ("large-pond-1981", 2.0, 1.20e-3),
         ("large-pond-1981", 30.0, 2.115e-3),
-        # common variant with 1.14e-3 below 10 m/s (REFERENCES.md)
+        # common variant with 1.14e-3 below 10 m/s (common practice)
         ("large-pond-1981-continuous", 5.0, 1.14e-3),
         ("large-pond-1981-continuous", 15.0, 1.465e-3),
-        # Trenberth, Large & Olson (1990) low-wind extension (REFERENCES.md); 2 m/s derived
+        # Trenberth, Large & Olson (1990), J. Phys. Oceanogr. 20, 1742-1760, low-wind
+        # extension; 2 m/s derived
         ("trenberth-1990", 0.5, 2.18e-3),
         ("trenberth-1990", 2.0, 1.40e-3),  # derived: 0.62 + 1.56 / 2
         ("trenberth-1990", 5.0, 1.14e-3),
         ("trenberth-1990", 20.0, 1.79e-3),
-        # Large & Yeager (2004) TN-460, derived values in REFERENCES.md (quoted to 4 figures)
+        # Large & Yeager (2004), NCAR Tech. Note TN-460+STR, values derived from its
+        # formula (quoted to 4 figures)
         ("large-yeager-2004", 5.0, 1.064e-3),
         ("large-yeager-2004", 10.0, 1.176e-3),
         ("large-yeager-2004", 20.0, 1.805e-3),
-        # Large & Yeager (2009) Clim. Dyn. eq. 11, derived values in REFERENCES.md
+        # Large & Yeager (2009), Clim. Dyn. 33, 341-364, eq. 11, values derived from it
         ("large-yeager-2009", 20.0, 1.785e-3),
         ("large-yeager-2009", 30.0, 2.294e-3),
         ("large-yeager-2009", 33.0, 2.34e-3),
@@ -398,7 +400,8 @@ def test_bad_air_density(bad):
 
 
 def test_monthly_mean_bias_monte_carlo():
-    # REFERENCES.md (derived): isotropic Gaussian fluctuations, s = 3 m/s about U = 10 m/s,
+    # Derived (the bias Rosen & Ponte 2003, J. Climate, describe): isotropic Gaussian
+    # fluctuations, s = 3 m/s about U = 10 m/s,
     # give <|u| u>/U^2 ~ 1.132. First the number itself, by quadrature (derived here).
     big_u, s = 10.0, 3.0
     gauss = lambda b, a: np.exp(-(a * a + b * b) / (2 * s * s)) / (2 * np.pi * s * s)  # noqa: E731

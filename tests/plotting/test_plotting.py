@@ -204,7 +204,7 @@ def test_map_ekman_pumping_from_a_bare_dataarray(strict, tmp_path, result):
     # Without a Dataset the ocean in the band is inferred from the rows on either side.
     fig, ax = plotting.map_ekman_pumping(result.ekman_pumping, width="page")
     names = [t.get_text() for t in fig.legends[0].get_texts()]
-    assert names == ["equatorial band (f \u2192 0), |lat| < 3\u00b0"]
+    assert names == ["equatorial band (Ekman ~ 1/f, equatorial dynamics), |lat| < 3\u00b0"]
     save(fig, tmp_path, "pumping_da")
 
 
@@ -218,7 +218,7 @@ def test_map_streamfunction_shades_where_sverdrup_fails(strict, tmp_path, result
     fig, ax = plotting.map_streamfunction(result)
     assert colorbar_label(fig) == "Sverdrup streamfunction (Sv)"
     names = {t.get_text() for t in fig.legends[0].get_texts()}
-    assert {"equatorial band (f \u2192 0)", "no eastern coast",
+    assert {"equatorial band (Ekman ~ 1/f, equatorial dynamics)", "no eastern coast",
             "western boundary-current zone"} <= names
     save(fig, tmp_path, "psi")
 
@@ -294,7 +294,7 @@ def test_plot_transport_with_observations(strict, tmp_path, result):
     assert axes[0].get_ylabel() == "transport (Sv)"
     names = {t.get_text() for t in fig.legends[0].get_texts()}
     assert {"Sverdrup interior", "western boundary current", "observed (\u00b1 spread)",
-            "equatorial band (f \u2192 0)"} <= names
+            "equatorial band (Ekman ~ 1/f, equatorial dynamics)"} <= names
     save(fig, tmp_path, "transport")
     fig, axes = plotting.plot_transport(result, basins=["Skerrow Passage"])
     assert "no eastern coast" in {t.get_text() for t in fig.legends[0].get_texts()}
@@ -367,7 +367,8 @@ def test_standard_figures_of_the_real_pipeline(strict, tmp_path, world):
 
     res = diagnose(world).compute()
     paths = plotting.save_standard_figures(res, tmp_path, width="column", dpi=80)
-    assert len(paths) == 6
+    assert len(paths) == 7
+    assert paths[-1].name == "crossing_time.png"
 
 
 def test_global_rcparams_untouched(strict, result):
