@@ -390,7 +390,7 @@ def _run_diagnose(args) -> int:
     say(f"wrote {path}")
     _summary(res, say, args.latitudes)
     if not args.no_figures:
-        from .plotting.figures import save_standard_figures
+        from .plotting import save_standard_figures
 
         for p in save_standard_figures(res, out):
             say(f"wrote {p}")

@@ -21,7 +21,8 @@ from matplotlib.colors import BoundaryNorm  # noqa: E402
 
 from sverdrup_kit import synthetic  # noqa: E402
 from sverdrup_kit.physics.operators import wind_stress_curl  # noqa: E402
-from sverdrup_kit.plotting import figures as plotting  # noqa: E402
+from sverdrup_kit import plotting  # noqa: E402
+from sverdrup_kit.plotting import _coastlines, _style  # noqa: E402
 
 RHO0, CD, RHO_AIR = 1025.0, 1.2e-3, 1.22
 OMEGA, R = 7.292115e-5, 6.371e6
@@ -170,7 +171,7 @@ OBS = [
 
 @pytest.mark.parametrize("width", ["column", "page", 5.0])
 def test_map_curl(strict, tmp_path, result, width):
-    fig, ax = plotting.map_curl(result, width=width)
+    fig, ax = plotting.map_wind_stress_curl(result, width=width)
     assert fig.get_figwidth() == pytest.approx(plotting.FIGURE_WIDTHS.get(width, width))
     label = colorbar_label(fig)
     assert "N m$^{-3}$" in label and "10$^{-" in label
@@ -178,13 +179,13 @@ def test_map_curl(strict, tmp_path, result, width):
 
 
 def test_map_curl_colours_are_symmetric_about_zero(strict, result):
-    fig, ax = plotting.map_curl(result)
+    fig, ax = plotting.map_wind_stress_curl(result)
     mesh = next(c for c in ax.collections if isinstance(getattr(c, "norm", None), BoundaryNorm))
     b = mesh.norm.boundaries
     np.testing.assert_allclose(b, -b[::-1], atol=1e-12)
     assert mesh.get_cmap().name == "curl"
     # Limits: the 98th percentile of |curl| rounded up by less than one of about six steps
-    # (derived from the level rule in plotting._levels); the label gives the power of ten.
+    # (derived from the level rule in _style.colour_levels); the label gives the power of ten.
     exp = int(re.search(r"10\$\^\{(-?\d+)\}\$", colorbar_label(fig)).group(1))
     top = b[-1] * 10.0**exp
     p98 = np.nanpercentile(np.abs(result.wind_stress_curl.values), 98)
@@ -215,7 +216,7 @@ def test_map_wind_stress(strict, tmp_path, result):
 
 
 def test_map_streamfunction_shades_where_sverdrup_fails(strict, tmp_path, result):
-    fig, ax = plotting.map_streamfunction(result)
+    fig, ax = plotting.map_sverdrup_streamfunction(result)
     assert colorbar_label(fig) == "Sverdrup streamfunction (Sv)"
     names = {t.get_text() for t in fig.legends[0].get_texts()}
     assert {"equatorial band (Ekman ~ 1/f, equatorial dynamics)", "no eastern coast",
@@ -237,10 +238,10 @@ def test_ocean_mask_in_another_longitude_convention(strict, tmp_path, result):
     # The mask on -180..180 with latitude descending, the field on 0..360 ascending.
     mask = result.ocean_mask.assign_coords(lon=((result.lon + 180) % 360) - 180).sortby("lon")
     mask = mask.isel(lat=slice(None, None, -1))
-    fig, ax = plotting.map_curl(result.wind_stress_curl, ocean_mask=mask)
+    fig, ax = plotting.map_wind_stress_curl(result.wind_stress_curl, ocean_mask=mask)
     save(fig, tmp_path, "curl_mask_convention")
     with pytest.raises(ValueError, match="ocean_mask"):
-        plotting.map_curl(result.wind_stress_curl, ocean_mask=mask.isel(lon=slice(0, -1)))
+        plotting.map_wind_stress_curl(result.wind_stress_curl, ocean_mask=mask.isel(lon=slice(0, -1)))
 
 
 # --- offline coastlines -------------------------------------------------------------------------
@@ -253,18 +254,18 @@ def test_invented_world_never_gets_earth_coastlines(strict, tmp_path, result, mo
         (fake / f"GSHHS_c_L1.{ext}").write_bytes(b"")
     monkeypatch.setenv("CARTOPY_DATA_DIR", str(tmp_path / "cartopy"))
     # The synthetic land does not look like Earth's, so the (here empty) files are not read.
-    fig, ax = plotting.map_curl(result)
+    fig, ax = plotting.map_wind_stress_curl(result)
     save(fig, tmp_path, "curl_mask")
 
 
 def test_gshhs_requested_without_files_says_how_to_fix(strict, result, monkeypatch, tmp_path):
     monkeypatch.setenv("CARTOPY_DATA_DIR", str(tmp_path))
     with pytest.raises(FileNotFoundError, match="coastlines='mask'"):
-        plotting.map_curl(result, coastlines="gshhs")
+        plotting.map_wind_stress_curl(result, coastlines="gshhs")
 
 
 def test_gshhs_coastlines_drawn_offline_when_present(strict, tmp_path, monkeypatch):
-    folder = plotting._gshhs_folder()
+    folder = _coastlines.gshhs_folder()
     if folder is None:
         pytest.skip("crude GSHHS shapefiles not under $CARTOPY_DATA_DIR (data_recipes.coastlines)")
     # An Earth-like land mask: land where the GSHHS polygons are, from the shapefile itself.
@@ -273,7 +274,7 @@ def test_gshhs_coastlines_drawn_offline_when_present(strict, tmp_path, monkeypat
 
     lat = np.arange(-89.0, 90, 2)
     lon = np.arange(1.0, 360, 2)
-    geoms = unary_union(plotting._gshhs_geometries(folder))
+    geoms = unary_union(_coastlines.gshhs_geometries(folder))
     lo2, la2 = np.meshgrid(((lon + 180) % 360) - 180, lat)
     land = contains_xy(geoms, lo2, la2)
     field = xr.DataArray(np.where(land, np.nan, np.cos(np.deg2rad(la2)) * np.sin(np.deg2rad(lo2))),
@@ -287,7 +288,7 @@ def test_gshhs_coastlines_drawn_offline_when_present(strict, tmp_path, monkeypat
 
 
 def test_plot_transport_with_observations(strict, tmp_path, result):
-    fig, axes = plotting.plot_transport(result, observations=OBS, width="column")
+    fig, axes = plotting.plot_interior_transport(result, observations=OBS, width="column")
     # The Skerrow Passage has no valid row, so by default it gets no (empty) panel.
     assert [a.get_title(loc="left") for a in axes] == ["Halcyon Ocean", "Lissom Ocean",
                                                       "Gulf of Maren"]
@@ -296,7 +297,7 @@ def test_plot_transport_with_observations(strict, tmp_path, result):
     assert {"Sverdrup interior", "western boundary current", "observed (\u00b1 spread)",
             "equatorial band (Ekman ~ 1/f, equatorial dynamics)"} <= names
     save(fig, tmp_path, "transport")
-    fig, axes = plotting.plot_transport(result, basins=["Skerrow Passage"])
+    fig, axes = plotting.plot_interior_transport(result, basins=["Skerrow Passage"])
     assert "no eastern coast" in {t.get_text() for t in fig.legends[0].get_texts()}
     save(fig, tmp_path, "transport_channel")
 
@@ -306,7 +307,7 @@ def test_plot_transport_accepts_the_observation_table(strict, tmp_path, result):
         {"transport": ("current", [30.0]), "spread": ("current", [3.0]),
          "lat": ("current", [27.0]), "basin": ("current", ["Halcyon Ocean"])},
         coords={"current": ["Brenn Current"]})
-    fig, axes = plotting.plot_transport(result, basins=["Halcyon Ocean"], observations=obs,
+    fig, axes = plotting.plot_interior_transport(result, basins=["Halcyon Ocean"], observations=obs,
                                         width="page")
     assert len(axes) == 1
     save(fig, tmp_path, "transport_one")
@@ -314,14 +315,14 @@ def test_plot_transport_accepts_the_observation_table(strict, tmp_path, result):
 
 def test_plot_transport_accepts_a_dataframe(strict, tmp_path, result):
     pd = pytest.importorskip("pandas")
-    fig, axes = plotting.plot_transport(result, observations=pd.DataFrame(OBS))
+    fig, axes = plotting.plot_interior_transport(result, observations=pd.DataFrame(OBS))
     names = {t.get_text() for a in axes for t in a.texts}
     assert names == {"Brenn Current", "Quillon Jet", "Austral Drift"}
     save(fig, tmp_path, "transport_df")
 
 
 def test_map_streamfunction_from_a_bare_dataarray(strict, tmp_path, result):
-    fig, ax = plotting.map_streamfunction(result.sverdrup_streamfunction, width="page")
+    fig, ax = plotting.map_sverdrup_streamfunction(result.sverdrup_streamfunction, width="page")
     assert colorbar_label(fig) == "Sverdrup streamfunction (Sv)"
     assert [t.get_text() for t in fig.legends[0].get_texts()] == ["no Sverdrup solution"]
     save(fig, tmp_path, "psi_da")
@@ -329,25 +330,25 @@ def test_map_streamfunction_from_a_bare_dataarray(strict, tmp_path, result):
 
 def test_plot_transport_bad_observations(result):
     with pytest.raises(ValueError, match="observations"):
-        plotting.plot_transport(result, observations=[{"lat": 20, "transport": 3}])
+        plotting.plot_interior_transport(result, observations=[{"lat": 20, "transport": 3}])
     with pytest.raises(ValueError, match="basins"):
-        plotting.plot_transport(result, basins=["Atlantis"])
+        plotting.plot_interior_transport(result, basins=["Atlantis"])
     with pytest.raises(ValueError, match="observations"):
-        plotting.plot_transport(result, observations=[dict(OBS[0], basin="Atlantis")])
+        plotting.plot_interior_transport(result, observations=[dict(OBS[0], basin="Atlantis")])
     plt.close("all")
 
 
 def test_hovmoller_zonal_mean_and_basin(strict, tmp_path, world, result):
-    fig, ax = plotting.plot_hovmoller(world.u)
+    fig, ax = plotting.plot_latitude_time(world.u)
     assert colorbar_label(fig).startswith("zonal mean eastward wind")
     assert [t.get_text() for t in ax.get_xticklabels()] == list("JFMAMJJASOND")
     save(fig, tmp_path, "hov_u")
-    fig, axes = plotting.plot_hovmoller(result.interior_transport_by_time,
+    fig, axes = plotting.plot_latitude_time(result.interior_transport_by_time,
                                         row_status=result.row_status, width="page")
     assert len(axes) == 3  # the passage has no values
     assert colorbar_label(fig) == "Sverdrup interior transport (Sv)"
     save(fig, tmp_path, "hov_T")
-    fig, ax = plotting.plot_hovmoller(result.interior_transport_by_time, basin="Halcyon Ocean",
+    fig, ax = plotting.plot_latitude_time(result.interior_transport_by_time, basin="Halcyon Ocean",
                                       row_status=result.row_status)
     save(fig, tmp_path, "hov_T1")
 
@@ -355,8 +356,9 @@ def test_hovmoller_zonal_mean_and_basin(strict, tmp_path, world, result):
 def test_save_standard_figures(strict, tmp_path, result):
     paths = plotting.save_standard_figures(result, tmp_path / "figs", width="column", dpi=100)
     assert [p.name for p in paths] == [
-        "wind_stress.png", "wind_stress_curl.png", "ekman_pumping.png", "streamfunction.png",
-        "transport.png", "seasonal_transport.png"]
+        "wind_stress_map.png", "wind_stress_curl_map.png", "ekman_pumping_map.png",
+        "sverdrup_streamfunction_map.png", "interior_transport_by_latitude.png",
+        "interior_transport_by_time.png"]
     assert sorted(p.name for p in (tmp_path / "figs").iterdir()) == sorted(p.name for p in paths)
     assert not plt.get_fignums()
 
@@ -373,8 +375,8 @@ def test_standard_figures_of_the_real_pipeline(strict, tmp_path, world):
 
 def test_global_rcparams_untouched(strict, result):
     before = dict(plt.rcParams)
-    plotting.map_curl(result, width="page")
-    plotting.plot_transport(result)
+    plotting.map_wind_stress_curl(result, width="page")
+    plotting.plot_interior_transport(result)
     assert dict(plt.rcParams) == before
 
 
@@ -383,27 +385,27 @@ def test_functions_never_show(strict, result, monkeypatch):
         raise AssertionError("plt.show() called")
 
     monkeypatch.setattr(plt, "show", fail)
-    plotting.map_streamfunction(result)
-    plotting.plot_hovmoller(result.interior_transport_by_time, basin="Lissom Ocean")
+    plotting.map_sverdrup_streamfunction(result)
+    plotting.plot_latitude_time(result.interior_transport_by_time, basin="Lissom Ocean")
 
 
 def test_bad_arguments_name_themselves(result):
     with pytest.raises(ValueError, match="width"):
-        plotting.map_curl(result, width="poster")
+        plotting.map_wind_stress_curl(result, width="poster")
     with pytest.raises(ValueError, match="projection"):
-        plotting.map_curl(result, projection="mercator")
+        plotting.map_wind_stress_curl(result, projection="mercator")
     with pytest.raises(ValueError, match="coastlines"):
-        plotting.map_curl(result, coastlines="yes")
+        plotting.map_wind_stress_curl(result, coastlines="yes")
     with pytest.raises(KeyError, match="sverdrup_streamfunction"):
-        plotting.map_streamfunction(result[["taux"]])
+        plotting.map_sverdrup_streamfunction(result[["taux"]])
     with pytest.raises(ValueError, match="time"):
-        plotting.plot_hovmoller(result.interior_transport)
+        plotting.plot_latitude_time(result.interior_transport)
     plt.close("all")
 
 
 def test_units_are_rendered_for_labels_only():
     # UDUNITS spellings to label text (common practice in journal figures).
-    assert plotting._pretty_units("1e6 m3 s-1") == "Sv"
-    assert plotting._pretty_units("N m-3") == "N m$^{-3}$"
-    assert plotting._pretty_units("m2 s-1") == "m$^{2}$ s$^{-1}$"
-    assert plotting._pretty_units("Pa") == "Pa"
+    assert _style.pretty_units("1e6 m3 s-1") == "Sv"
+    assert _style.pretty_units("N m-3") == "N m$^{-3}$"
+    assert _style.pretty_units("m2 s-1") == "m$^{2}$ s$^{-1}$"
+    assert _style.pretty_units("Pa") == "Pa"
