@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import matplotlib as mpl
 import matplotlib.pyplot as plt
 import numpy as np
@@ -30,11 +32,17 @@ from ._style import (
     style_axes,
 )
 
-__all__ = ["plot_latitude_time"]
+__all__ = ["TIME_DIMS", "plot_latitude_time"]
+
 
 def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cmap=None,
-                   robust: float = 98.0, vmax=None, title=None, label=None):
-    """Latitude-time (Hovmoller) diagram of a seasonal cycle.
+                       robust: float = 98.0, vmax=None, title=None, label=None):
+    """Latitude-time (Hovmoller) diagram of a seasonal cycle or a record of any length.
+
+    The time axis reads at any length: a climatology (12 months of one year, or a ``month``
+    or ``season`` dimension from ``groupby``) shows its months or seasons; a record of up to
+    two years shows month names with the years in the axis label; a longer record shows years,
+    as many as fit without overlapping.
 
     Parameters
     ----------
@@ -42,26 +50,30 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
         (time, lat, lon): drawn as the zonal mean over the ocean cells of each row;
         (time, basin, lat): a basin-integrated quantity such as the interior transport of each
         month (``interior_transport_by_time`` from :func:`~sverdrup_kit.pipeline.diagnose`),
-        one panel per basin unless ``basin`` picks one; (time, lat): drawn as it is.
+        one panel per basin unless ``basin`` picks one; (time, lat): drawn as it is. The
+        ``time`` dimension may instead be ``month`` (1-12) or ``season`` ("DJF", ...).
     basin : str, optional
         Basin to draw.
     row_status : xarray.DataArray (basin, lat), optional
         CF-flagged row status; rows that are not valid are hatched and named.
     width : "column", "page" or float
     cmap, robust, vmax, label, title
-        As in :func:`map_field`.
+        As in :func:`~sverdrup_kit.plotting.maps.map_field`.
 
     Returns
     -------
     fig, ax (one basin or no basin dimension) or fig, axes (several basins)
     """
     da = require_dataarray(data, "data")
-    if "time" not in da.dims:
+    tdims = [d for d in TIME_DIMS if d in da.dims]
+    if len(tdims) != 1:
         raise ValueError(
-            f"data: expected a 'time' dimension for a seasonal cycle, found dims {da.dims}. "
-            "Fix: pass the monthly field, e.g. the result's interior_transport_by_time."
+            f"data: expected one time dimension (one of {list(TIME_DIMS)}), found dims "
+            f"{da.dims}. Fix: pass a record or a climatology, e.g. the result's "
+            "interior_transport_by_time."
         )
-    spatial = [d for d in da.dims if d not in ("time", "basin")]
+    tdim = tdims[0]
+    spatial = [d for d in da.dims if d not in (tdim, "basin")]
     if len(spatial) == 2:
         lay = grid_layout(da, argname="data")
         lat_name = lay.lat_name
@@ -104,19 +116,21 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
         fig, axes = plt.subplots(1, n, figsize=(w, 0.6 * w if n == 1 else 0.5 * w + 0.4),
                                  sharey=True, squeeze=False, layout="constrained")
         axes = axes[0]
-        t = np.arange(shown.sizes["time"])
+        # Panel width left for the time axis: the figure less the latitude labels, the
+        # colour-bar padding and the gaps between panels.
+        axis = _time_axis(shown[tdim], (w - 0.6) / n - 0.1 * (n - 1), fs)
         handles = {}
         spans = []
         for ax, b in zip(axes, panels):
             field = shown if b is None else shown.sel(basin=b)
-            field = field.transpose(lat_name, "time")
+            field = field.transpose(lat_name, tdim)
             lat = field[lat_name].values
-            mesh = ax.pcolormesh(cell_edges(t.astype(float)), np.clip(cell_edges(lat), -90, 90),
+            mesh = ax.pcolormesh(axis.edges, np.clip(cell_edges(lat), -90, 90),
                                  field.values / scale, cmap=cmap, norm=norm, rasterized=True)
             vals = field.values
             finite = vals[np.isfinite(vals)]
             if finite.size and finite.min() < 0 < finite.max():
-                ax.contour(t, lat, vals, levels=[0], colors="0.1", linewidths=0.6)
+                ax.contour(axis.centres, lat, vals, levels=[0], colors="0.1", linewidths=0.6)
             if meanings and b is not None and b in [str(x) for x in row_status["basin"].values]:
                 st = row_status.sel(basin=b).values
                 st_lat = row_status[[d for d in row_status.dims if d != "basin"][0]].values
@@ -135,10 +149,10 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
             if finite_rows.any():
                 pad = np.median(np.diff(lat)) if lat.size > 1 else 1.0
                 spans.append((lat[finite_rows].min() - pad, lat[finite_rows].max() + pad))
-            labels = _time_labels(shown["time"])
-            every = 1 if w / n >= 1.4 else 3
-            ax.set_xticks(t[::every], labels[::every])
-            ax.set_xticks(t, minor=True)
+            ax.set_xlim(axis.edges[0], axis.edges[-1])
+            ax.set_xticks(axis.ticks, axis.labels)
+            ax.set_xticks(axis.minor, minor=True)
+            ax.set_xlabel(axis.label, fontsize=fs["base"])
             if b is not None:
                 ax.set_title(b, fontsize=fs["base"], loc="left")
             style_axes(ax, fs)
@@ -164,11 +178,83 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
     return (fig, axes[0]) if n == 1 else (fig, axes)
 
 
-def _time_labels(time: xr.DataArray) -> list[str]:
+#: Dimensions that can hold the time axis: a record, or a climatology from ``groupby``.
+TIME_DIMS = ("time", "month", "season")
+
+_MONTHS = ("Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec")
+
+
+class _TimeAxis(NamedTuple):
+    centres: np.ndarray
+    edges: np.ndarray
+    ticks: np.ndarray
+    labels: list
+    minor: np.ndarray
+    label: str
+
+
+def _fits(n_labels: int, chars: int, panel_in: float, fs: dict) -> bool:
+    """Whether n labels of ``chars`` characters fit side by side on a panel without touching
+    (a character is about 0.6 em wide; 0.12 in of space between labels)."""
+    return n_labels * (chars * 0.6 * fs["small"] / 72 + 0.12) <= panel_in
+
+
+def _cycle_axis(labels, panel_in, fs, label) -> _TimeAxis:
+    n = len(labels)
+    x = np.arange(n, dtype=float)
+    every = next((k for k in (1, 2, 3, 4, 6) if _fits(-(-n // k), max(map(len, labels)),
+                                                      panel_in, fs)), 6)
+    ticks = x[::every]
+    return _TimeAxis(x, cell_edges(x), ticks, [labels[int(i)] for i in ticks], x, label)
+
+
+def _time_axis(time: xr.DataArray, panel_in: float, fs: dict) -> _TimeAxis:
+    """Positions, ticks and labels of a time axis that read at any record length."""
+    n = time.size
+    if time.name == "season" or time.dtype.kind in "US":
+        return _cycle_axis([str(s) for s in time.values], panel_in, fs, str(time.name))
+    if time.name == "month":
+        months = np.asarray(time.values, dtype=int)
+        short = _fits(n, 3, panel_in, fs)
+        return _cycle_axis([_MONTHS[m - 1] if short else _MONTHS[m - 1][0] for m in months],
+                           panel_in, fs, "month")
     try:
-        months = time.dt.month.values
+        year = time.dt.year.values.astype(float)
+        month = time.dt.month.values
+        frac = (time.dt.day.values - 1) / time.dt.days_in_month.values
     except (AttributeError, TypeError):
-        return [str(i) for i in range(time.size)]
-    if time.size == 12 and sorted(months) == list(range(1, 13)):
-        return ["JFMAMJJASOND"[m - 1] for m in months]
-    return [str(t)[:7] for t in time.dt.strftime("%Y-%m").values]
+        x = np.arange(n, dtype=float)
+        ticks = mticker.MaxNLocator(nbins=max(2, int(panel_in / 0.5)), integer=True).tick_values(
+            0, max(n - 1, 1))
+        ticks = ticks[(ticks >= 0) & (ticks <= n - 1)]
+        return _TimeAxis(x, cell_edges(x) if n > 1 else np.array([-0.5, 0.5]), ticks,
+                         [f"{t:g}" for t in ticks], x, f"{time.name} (position)")
+    if n <= 12 and np.unique(month).size == n and np.unique(year).size == 1:
+        # Twelve months (or fewer) of one year: a climatology, or one year's seasonal cycle;
+        # the year of a climatology is a placeholder, so it is left out.
+        short = _fits(n, 3, panel_in, fs)
+        labels = [_MONTHS[m - 1] if short else _MONTHS[m - 1][0] for m in month]
+        return _cycle_axis(labels, panel_in, fs, "month")
+    x = year + (month - 1 + frac) / 12.0
+    edges = cell_edges(x) if n > 1 else np.array([x[0], x[0] + 1 / 12])
+    first, last = int(np.floor(edges[0])), int(np.ceil(edges[-1]))
+    if edges[-1] - edges[0] <= 2.0:
+        # Up to two years: month names at the month starts, as many as fit.
+        starts = np.array([y + m / 12.0 for y in range(first, last + 1) for m in range(12)])
+        starts = starts[(starts >= edges[0] - 1e-9) & (starts <= edges[-1] + 1e-9)]
+        every = next((k for k in (1, 2, 3, 6) if _fits(-(-starts.size // k), 3, panel_in, fs)),
+                     12)
+        pick = np.round((starts % 1) * 12).astype(int) % every == 0
+        ticks = starts[pick]
+        labels = [_MONTHS[int(round((t % 1) * 12)) % 12] for t in ticks]
+        years = f"{first}" if last - first <= 1 else f"{first}\u2013{last - 1}"
+        return _TimeAxis(x, edges, ticks, labels, starts, f"month of {years}")
+    # Longer records: years at their first day, every k-th year so that the labels fit.
+    step = next((k for k in (1, 2, 5, 10, 20, 25, 50, 100, 200, 500)
+                 if _fits((last - first) // k + 1, 4, panel_in, fs)), 1000)
+    ticks = np.array([y for y in range(first, last + 1)
+                      if y % step == 0 and edges[0] - 1e-9 <= y <= edges[-1] + 1e-9], float)
+    minor = np.arange(first, last + 1, dtype=float) if step > 1 else np.array(
+        [y + m / 4.0 for y in range(first, last + 1) for m in range(4)])
+    minor = minor[(minor >= edges[0] - 1e-9) & (minor <= edges[-1] + 1e-9)]
+    return _TimeAxis(x, edges, ticks, [f"{int(t)}" for t in ticks], minor, "year")
