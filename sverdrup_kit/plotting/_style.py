@@ -58,7 +58,10 @@ _SVERDRUP_UNITS = {"1e6 m3 s-1": 1.0, "1e6 m3/s": 1.0, "sverdrup": 1.0, "sverdru
 #: How each row_status meaning is named on figures and how its region is shaded: hatching on a
 #: pale neutral ground, so that it cannot be mistaken for a value of a diverging colour map.
 REASONS = {
-    "equatorial_band": Shade("equatorial band (f \u2192 0)", "#ececec", "...."),
+    # V = curl / (rho0 beta) stays finite at the equator; what fails there is the split into
+    # Ekman and geostrophic parts (both go as 1/f) and the balance itself (undercurrents,
+    # nonlinearity, friction), so the legend names the balance, not f.
+    "equatorial_band": Shade("equatorial band (no Sverdrup balance)", "#ececec", "...."),
     "no_eastern_coast": Shade("no eastern coast", "#ececec", "\\\\\\"),
     "too_narrow": Shade("basin too narrow", "#ececec", "xxxx"),
     "outside": Shade("outside the basins", "#f7f7f7", "||||"),
@@ -223,9 +226,9 @@ def plain_formatter():
     return mticker.FuncFormatter(lambda x, _pos: f"{x:.6g}".replace("-", "\u2212"))
 
 
-def colorbar(fig, ax, mappable, label, fs, *, extend, ticks=None):
-    cb = fig.colorbar(mappable, ax=ax, orientation="horizontal", shrink=0.8, aspect=32,
-                      pad=0.02, extend=extend, ticks=ticks)
+def colorbar(fig, cax, mappable, label, fs, *, extend, ticks=None):
+    """A horizontal colour bar in the axes ``cax``, its label and ticks at the figure's sizes."""
+    cb = fig.colorbar(mappable, cax=cax, orientation="horizontal", extend=extend, ticks=ticks)
     cb.set_label(label, fontsize=fs["base"])
     cb.ax.tick_params(labelsize=fs["small"], width=0.5, length=2)
     cb.ax.xaxis.set_major_formatter(plain_formatter())

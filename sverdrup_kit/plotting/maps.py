@@ -12,6 +12,7 @@ import cartopy.crs as ccrs
 import matplotlib as mpl
 import numpy as np
 import xarray as xr
+from matplotlib.axes import Axes
 
 from ..geometry.coords import grid_layout, require_dataarray
 from ._inputs import (
@@ -26,7 +27,7 @@ from ._inputs import (
     reduce_time,
     status_info,
 )
-from ._mapping import MapGrid, legend_below, map_core
+from ._mapping import finish_map, map_core
 from ._style import (
     BOUNDARY_ZONE,
     REASONS,
@@ -100,7 +101,7 @@ def map_field(
     title, label : str, optional
         Axes title; colour-bar label (default: long_name and units of ``data``).
     missing_label : str, optional
-        Legend name of ocean cells without data (e.g. "equatorial band (f → 0)").
+        Legend name of ocean cells without data (e.g. "equatorial band, |lat| < 3°").
     to_per_year : bool
         Show a velocity in m s-1 as m yr-1.
 
@@ -113,13 +114,13 @@ def map_field(
     w = figure_width(width)
     fs = fonts(w)
     with mpl.rc_context(rc(fs)):
-        fig, ax, handles = map_core(
+        m = map_core(
             da, ocean_mask=ocean_mask, cmap=cmap, robust=robust, vmax=vmax, symmetric=symmetric,
             width=width, projection=projection, central_longitude=central_longitude,
-            coastlines=coastlines, title=title, label=label, missing_label=missing_label,
+            coastlines=coastlines, label=label, missing_label=missing_label,
             to_per_year=to_per_year)
-        legend_below(fig, ax, handles, fs)
-    return fig, ax
+        finish_map(m.fig, m.ax, m.cax, m.handles, fs, title=title)
+    return m.fig, m.ax
 
 
 def map_wind_stress(data, tauy=None, *, every=None, reference=None, time="mean", width="column",
@@ -157,10 +158,11 @@ def map_wind_stress(data, tauy=None, *, every=None, reference=None, time="mean",
     w = figure_width(width)
     fs = fonts(w)
     with mpl.rc_context(rc(fs)):
-        fig, ax, _ = map_core(
+        m = map_core(
             mag, ocean_mask=None, cmap=cmocean.cm.amp, robust=robust, vmax=None, symmetric=False,
             width=width, projection=projection, central_longitude=None, coastlines=coastlines,
-            title=title, label=None, missing_label=None, to_per_year=False)
+            label=None, missing_label=None, to_per_year=False)
+        ax = m.ax
         lat, lon, tx, _ = canonical_2d(taux, "taux")
         _, _, ty, _ = canonical_2d(tauy, "tauy")
         step = every or max(1, int(round(lon.size / (22 if w < 5 else 40))))
@@ -179,9 +181,12 @@ def map_wind_stress(data, tauy=None, *, every=None, reference=None, time="mean",
                       scale=typical / (1.3 * spacing_in), scale_units="inches",
                       width=0.0035 * 3.5 / w, headwidth=3.5, headlength=3.5, headaxislength=3,
                       color="0.1")
-        ax.quiverkey(q, 0.86, 0.03, reference, f"{reference:g} {pretty_units(units)}",
-                     labelpos="E", fontproperties={"size": fs["small"]}, coordinates="axes")
-    return fig, ax
+        # The key sits in the empty corner south-east of the map's outline.
+        ax.quiverkey(q, 0.9, 0.04, reference, f"{reference:g} {pretty_units(units)}",
+                     labelpos="N", labelsep=0.03, fontproperties={"size": fs["small"]},
+                     coordinates="axes")
+        finish_map(m.fig, ax, m.cax, m.handles, fs, title=title)
+    return m.fig, ax
 
 
 def map_wind_stress_curl(data, **kw):
@@ -224,7 +229,8 @@ def map_ekman_pumping(data, *, equatorial_half_width=None, limits_poleward_of: f
     band = equatorial_half_width_of(data if ds is not None else da, equatorial_half_width)
     kw.setdefault("cmap", cmocean.cm.delta)
     kw.setdefault("to_per_year", True)
-    kw.setdefault("missing_label", f"{REASONS['equatorial_band'].label}, |lat| < {band:g}\u00b0")
+    # Here f -> 0 is the reason: the pumping curl(tau / f) / rho0 grows without bound.
+    kw.setdefault("missing_label", f"equatorial band, |lat| < {band:g}\u00b0 (pumping \u221d 1/f)")
     reduced = reduce_time(da, kw.get("time", "mean"), "data")
     if "ocean_mask" not in kw:
         # Only cells inside the band are shaded as the band: elsewhere a missing value is land
@@ -286,16 +292,16 @@ def map_sverdrup_streamfunction(data, *, boundary_zone_km: float = 300.0, time="
     w = figure_width(width)
     fs = fonts(w)
     with mpl.rc_context(rc(fs)):
-        fig, ax, handles = map_core(
+        m = map_core(
             psi, ocean_mask=ocean, cmap=cmocean.cm.balance, robust=robust, vmax=vmax,
             symmetric=True, width=width, projection=projection, central_longitude=None,
-            coastlines=coastlines, title=title, label=None,
+            coastlines=coastlines, label=None,
             missing_label="no Sverdrup solution" if not shading else None, to_per_year=False,
             extra_shading=shading)
         if contours:
-            _streamlines(ax, psi, ocean, robust=robust, vmax=vmax)
-        legend_below(fig, ax, handles, fs)
-    return fig, ax
+            _streamlines(m.ax, m.grid, psi, robust=robust, vmax=vmax)
+        finish_map(m.fig, m.ax, m.cax, m.handles, fs, title=title)
+    return m.fig, m.ax
 
 
 def _not_valid_cells(ds, lay, ocean_da, boundary_zone_km):
@@ -353,7 +359,7 @@ def _boundary_zone(ds, lay, bid, cell_status, meanings, km):
     return zone
 
 
-def _streamlines(ax, psi, ocean_da, *, robust, vmax):
+def _streamlines(ax, grid, psi, *, robust, vmax):
     """Contours of the streamfunction at its colour levels, negative dashed."""
     shown, _ = as_display(psi)
     lat, lon, c, periodic = canonical_2d(shown, "streamfunction")
@@ -362,10 +368,10 @@ def _streamlines(ax, psi, ocean_da, *, robust, vmax):
         return
     levels, _, _ = colour_levels(c, robust=robust, symmetric=True, vmax=vmax)
     levels = levels[levels != 0]
-    ocean = mask_like(ocean_da.astype(float), lat, lon, "ocean_mask")
-    grid = MapGrid(lat, lon, periodic, ~ocean)
     lon_c, vals = grid.cyclic(c)
     levels = levels[(levels > np.nanmin(vals)) & (levels < np.nanmax(vals))]
     if levels.size:
-        ax.contour(lon_c, lat, vals, levels=levels, colors="0.15", linewidths=0.35,
-                   negative_linestyles="dashed", transform=ccrs.PlateCarree(), zorder=2.6)
+        # Contoured on the projected centres: the same lines, without cartopy reprojecting them.
+        x, y = grid.xy(ax.projection, *np.meshgrid(lon_c, lat))
+        Axes.contour(ax, x, y, vals, levels=levels, colors="0.15", linewidths=0.35,
+                     negative_linestyles="dashed", zorder=2.6)

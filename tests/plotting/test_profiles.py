@@ -21,7 +21,7 @@ def test_plot_transport_with_observations(strict, tmp_path, result):
     assert axes[0].get_ylabel() == "transport (Sv)"
     names = {t.get_text() for t in fig.legends[0].get_texts()}
     assert {"Sverdrup interior", "western boundary current", "observed (\u00b1 spread)",
-            "equatorial band (f \u2192 0)"} <= names
+            "equatorial band (no Sverdrup balance)"} <= names
     save(fig, tmp_path, "transport")
     fig, axes = plotting.plot_interior_transport(result, basins=["Skerrow Passage"])
     assert "no eastern coast" in {t.get_text() for t in fig.legends[0].get_texts()}
