@@ -20,7 +20,12 @@ Private modules hold what they share: ``_style`` (sizes, fonts, colours, unit la
 from ._style import FIGURE_WIDTHS
 from .adjustment import mark_adjusted_rows, plot_crossing_time, plot_lagged_transport
 from .balance import plot_balance
-from .figure_set import STANDARD_FIGURES, save_standard_figures
+from .figure_set import (
+    FIGURE_FORMATS,
+    STANDARD_FIGURES,
+    available_figures,
+    save_standard_figures,
+)
 from .maps import (
     map_ekman_pumping,
     map_field,
@@ -34,6 +39,7 @@ from .spread import plot_transport_spread
 from .time_diagrams import plot_latitude_time
 
 __all__ = [
+    "FIGURE_FORMATS",
     "FIGURE_WIDTHS",
     "STANDARD_FIGURES",
     "map_field",
@@ -49,5 +55,6 @@ __all__ = [
     "plot_model_vs_sverdrup",
     "plot_interior_transport",
     "plot_latitude_time",
+    "available_figures",
     "save_standard_figures",
 ]

@@ -44,6 +44,7 @@ from ._style import (
     extend_of,
     figure_width,
     fonts,
+    legend_columns,
     long_name,
 )
 
@@ -149,7 +150,7 @@ def _cells_geometry(grid: MapGrid, mask: np.ndarray):
         return None
     b = np.asarray(boxes)
     merged = shapely.orient_polygons(
-        shapely.coverage_union_all(shapely.box(b[:, 0], b[:, 1], b[:, 2], b[:, 3])))
+        shapely.union_all(shapely.box(b[:, 0], b[:, 1], b[:, 2], b[:, 3])))
     # Meridians curve on a Robinson map: edges longer than 2.5 degrees get points between.
     if np.max(np.diff(grid.lat_e)) > 2.5:
         merged = shapely.segmentize(merged, 2.5)
@@ -294,7 +295,7 @@ def finish_map(fig, ax, cax, handles, fs, *, title=None):
     lon_labels = 1.3 * small + 0.06
     cb_gap, cb_h = 0.06, 0.1
     cb_text = 1.35 * small + 0.04 + 1.4 * base
-    ncols = min(2 if w < 5 else 3, len(handles)) if handles else 1
+    ncols = legend_columns([h.get_label() for h in handles], fs, w) if handles else 1
     rows = -(-len(handles) // ncols) if handles else 0
     legend = rows * 1.7 * small + 0.1 if rows else 0.04
     below = lon_labels + (cb_gap + cb_h + cb_text if cax is not None else 0.0) + legend

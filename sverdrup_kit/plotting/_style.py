@@ -234,3 +234,46 @@ def colorbar(fig, cax, mappable, label, fs, *, extend, ticks=None):
     cb.ax.xaxis.set_major_formatter(plain_formatter())
     cb.outline.set_linewidth(0.5)
     return cb
+
+
+def line_height(points: float) -> float:
+    """Height in inches of one line of text at a font size in points (1.35 em: common
+    practice for label boxes with their leading)."""
+    return 1.35 * points / 72.0
+
+
+def text_width(chars: int, points: float) -> float:
+    """Width in inches of ``chars`` characters of DejaVu Sans at a font size (about 0.6 em)."""
+    return chars * 0.6 * points / 72.0
+
+
+def place_panels(fig, axes, *, left, right, bottom, top, gap, stacked):
+    """Place axes in a column (``stacked``) or a row, with margins and gaps in inches.
+
+    Layouts are worked out from the font sizes instead of by a layout engine: the engine draws
+    the figure twice more to measure it, which was a third of the time of a figure.
+    """
+    w, h = fig.get_size_inches()
+    n = len(axes)
+    if stacked:
+        ph = (h - top - bottom - gap * (n - 1)) / n
+        for i, ax in enumerate(axes):
+            y = bottom + (n - 1 - i) * (ph + gap)
+            ax.set_position((left / w, y / h, (w - left - right) / w, ph / h))
+    else:
+        pw = (w - left - right - gap * (n - 1)) / n
+        for i, ax in enumerate(axes):
+            ax.set_position(((left + i * (pw + gap)) / w, bottom / h, pw / w,
+                             (h - top - bottom) / h))
+
+
+def legend_columns(labels, fs: dict, width_in: float, most: int = 3) -> int:
+    """The most legend columns (up to ``most``) whose entries fit side by side in the width:
+    each entry is its handle (1.8 em), a pad (0.8 em), its text and the column spacing (1 em)."""
+    em = fs["small"] / 72.0
+    widths = sorted((text_width(len(str(s)), fs["small"]) + 3.6 * em for s in labels),
+                    reverse=True)
+    for k in range(min(most, len(widths)), 1, -1):
+        if sum(widths[:k]) <= width_in - 0.1:
+            return k
+    return 1

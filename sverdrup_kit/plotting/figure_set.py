@@ -23,7 +23,7 @@ from .maps import (
 from .profiles import plot_interior_transport
 from .time_diagrams import plot_latitude_time
 
-__all__ = ["FIGURE_FORMATS", "STANDARD_FIGURES", "save_standard_figures"]
+__all__ = ["FIGURE_FORMATS", "STANDARD_FIGURES", "available_figures", "save_standard_figures"]
 
 #: File formats the standard figures are written in (raster PNG; vector PDF and SVG, with the
 #: large colour meshes embedded as images).
@@ -85,9 +85,14 @@ def _save(fig, path: Path, dpi: int) -> Path:
     return path
 
 
+def available_figures(data: xr.Dataset) -> list[str]:
+    """Names of the standard figures that the variables of ``data`` allow, in table order."""
+    return [n for n, f in _FIGURES.items() if all(v in data for v in f.needs)]
+
+
 def _chosen(data: xr.Dataset, figures) -> list[str]:
     if figures is None:
-        return [n for n, f in _FIGURES.items() if all(v in data for v in f.needs)]
+        return available_figures(data)
     chosen = [figures] if isinstance(figures, str) else list(figures)
     unknown = [n for n in chosen if n not in _FIGURES]
     if unknown or not chosen:

@@ -192,7 +192,8 @@ def map_wind_stress(data, tauy=None, *, every=None, reference=None, time="mean",
 def map_wind_stress_curl(data, **kw):
     """Map the wind-stress curl (N m-3) with the cmocean ``curl`` map; see :func:`map_field`.
 
-    ``data`` is the DataArray from :func:`~sverdrup_kit.physics.operators.wind_stress_curl` or a Dataset
+    ``data`` is the DataArray from :func:`~sverdrup_kit.physics.operators.wind_stress_curl` or
+    a Dataset
     holding ``wind_stress_curl`` (and perhaps ``ocean_mask``).
     """
     da = pick(data, ("wind_stress_curl",), "data")
@@ -208,7 +209,8 @@ def map_ekman_pumping(data, *, equatorial_half_width=None, limits_poleward_of: f
     Parameters
     ----------
     data : xarray.Dataset or xarray.DataArray
-        The Dataset from :func:`~sverdrup_kit.physics.ekman.ekman` (or one holding ``ekman_pumping``),
+        The Dataset from :func:`~sverdrup_kit.physics.ekman.ekman` (or one holding
+        ``ekman_pumping``),
         or the ``ekman_pumping`` DataArray, in m s-1.
     equatorial_half_width : float, optional
         Half-width in degrees of the band left empty (default: the data's attrs, else 3).
@@ -247,15 +249,16 @@ def map_ekman_pumping(data, *, equatorial_half_width=None, limits_poleward_of: f
     return map_field(da, **kw)
 
 
-def map_sverdrup_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean", width="column",
-                       projection="robinson", coastlines="auto", title=None, robust=98.0,
-                       vmax=None, contours: bool = True):
+def map_sverdrup_streamfunction(data, *, boundary_zone_km: float = 300.0, time="mean",
+                                width="column", projection="robinson", coastlines="auto",
+                                title=None, robust=98.0, vmax=None, contours: bool = True):
     """Map the Sverdrup streamfunction (Sv), with the regions where it does not hold shaded.
 
     Parameters
     ----------
     data : xarray.Dataset
-        From :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`: ``streamfunction`` (1e6 m3 s-1) and, when
+        From :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`:
+        ``sverdrup_streamfunction`` (1e6 m3 s-1) and, when
         present, ``row_status`` (basin, lat) with CF flags, ``basin_id`` (lat, lon),
         ``western_coast_lon`` (basin, lat) and ``wind_stress_curl`` (its finite cells are the
         ocean). For a bare streamfunction DataArray only the equatorial band between cells
@@ -273,7 +276,8 @@ def map_sverdrup_streamfunction(data, *, boundary_zone_km: float = 300.0, time="
     -------
     fig, ax
     """
-    psi = reduce_time(pick(data, ("sverdrup_streamfunction",), "data"), time, "sverdrup_streamfunction")
+    psi = reduce_time(pick(data, ("sverdrup_streamfunction",), "data"), time,
+                      "sverdrup_streamfunction")
     ds = data if isinstance(data, xr.Dataset) else xr.Dataset()
     if not np.isfinite(boundary_zone_km) or boundary_zone_km < 0:
         raise ValueError(

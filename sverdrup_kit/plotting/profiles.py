@@ -16,9 +16,13 @@ from ._style import (
     figure_width,
     fonts,
     latitude_formatter,
+    legend_columns,
+    line_height,
+    place_panels,
     rc,
     reason_style,
     style_axes,
+    text_width,
 )
 
 __all__ = ["plot_interior_transport"]
@@ -30,7 +34,8 @@ def plot_interior_transport(data, *, basins=None, observations=None, time="mean"
     Parameters
     ----------
     data : xarray.Dataset
-        From :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`: ``interior_transport`` (basin, lat) in
+        From :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`:
+        ``interior_transport`` (basin, lat) in
         1e6 m3 s-1, ``boundary_current_transport`` (optional) and ``row_status`` (basin, lat)
         with CF flag_values/flag_meanings. Latitude bands where a basin's rows are not valid
         are shaded and named by their flag meaning.
@@ -54,10 +59,11 @@ def plot_interior_transport(data, *, basins=None, observations=None, time="mean"
     """
     if not isinstance(data, xr.Dataset) or "interior_transport" not in data:
         raise TypeError(
-            "data: expected the Dataset from sverdrup_kit.physics.sverdrup with 'interior_transport' "
+            "data: expected the Dataset from sverdrup_kit.physics.sverdrup with "
+            "'interior_transport' "
             f"(basin, lat), found {type(data).__name__}"
             + (f" with variables {list(data.data_vars)}" if isinstance(data, xr.Dataset) else "")
-            + ". Fix: pass the whole result of sverdrup()."
+            + ". Fix: pass the whole result of sverdrup_transport()."
         )
     interior = reduce_time(data["interior_transport"], time, "interior_transport")
     names = basin_names(data)
@@ -96,15 +102,15 @@ def plot_interior_transport(data, *, basins=None, observations=None, time="mean"
     fs = fonts(w)
     n = len(chosen)
     with mpl.rc_context(rc(fs)):
-        fig, axes = plt.subplots(n, 1, figsize=(w, 0.35 + n * (1.5 + 0.1 * (w - 3.5))),
-                                 sharex=True, squeeze=False, layout="constrained")
+        fig, axes = plt.subplots(n, 1, figsize=(w, 4.0), sharex=True, squeeze=False)
         axes = axes[:, 0]
         handles = {}
         spans = []
         for ax, name in zip(axes, chosen):
             spans.append(_transport_panel(ax, data, shown, bc, name, lat_dim, meanings, obs,
                                           len(chosen), fs, handles))
-            ax.set_ylabel(f"transport ({units})" if units else "transport", fontsize=fs["base"])
+            ax.set_ylabel(f"northward transport ({units})" if units else "northward transport",
+                          fontsize=fs["base"])
         lo, hi = min(a for a, _ in spans), max(b for _, b in spans)
         axes[-1].set_xlim(lo, hi)
         axes[-1].xaxis.set_major_locator(mticker.MultipleLocator(30 if hi - lo > 60 else 15))
@@ -112,11 +118,28 @@ def plot_interior_transport(data, *, basins=None, observations=None, time="mean"
         axes[-1].xaxis.set_major_formatter(latitude_formatter())
         # Curves and observations first, then the shaded regions.
         order = sorted(handles, key=lambda k: (k not in ("interior", "bc", "obs"), 0))
-        fig.legend(handles=[handles[k] for k in order], loc="outside lower center",
-                   ncols=min(2 if w < 5 else 3, len(handles)), frameon=False,
-                   fontsize=fs["small"], handlelength=1.8, columnspacing=1.0)
+        ncols = legend_columns([h.get_label() for h in handles.values()], fs, w)
+        rows = -(-len(handles) // ncols)
+        small, base = fs["small"], fs["base"]
+        legend_h = rows * 1.3 * line_height(small) + 0.1
+        # Room for the tick labels (up to four characters, e.g. "-100"), the axis labels, each
+        # panel's title and the legend.
+        left = line_height(base) + text_width(4, small) + 0.14
+        bottom = line_height(small) + 0.06 + line_height(base) + 0.04 + legend_h
+        title_h = line_height(base) + 0.04
+        top = 0.06 + title_h + (line_height(fs["title"]) + 0.04 if title else 0.0)
+        gap = title_h + 0.1
+        panel_h = 1.5 + 0.1 * (w - 3.5)
+        fig.set_size_inches(w, top + bottom + n * panel_h + (n - 1) * gap)
+        place_panels(fig, axes, left=left, right=0.12, bottom=bottom, top=top, gap=gap,
+                     stacked=True)
+        fig.legend(handles=[handles[k] for k in order], loc="lower center",
+                   bbox_to_anchor=(0.5, 0.02 / fig.get_figheight()), ncols=ncols,
+                   frameon=False, fontsize=small, handlelength=1.8, columnspacing=1.0,
+                   borderaxespad=0.0, borderpad=0.0)
         if title:
-            fig.suptitle(title, fontsize=fs["title"])
+            fig.suptitle(title, fontsize=fs["title"], y=1 - 0.04 / fig.get_figheight(),
+                         va="top")
     return fig, axes
 
 

@@ -19,17 +19,21 @@ from ._style import (
     as_display,
     axis_label,
     cmocean,
+    colorbar,
     colour_levels,
     colour_ticks,
     extend_of,
     figure_width,
     fonts,
     latitude_formatter,
+    legend_columns,
+    line_height,
     long_name,
-    plain_formatter,
+    place_panels,
     rc,
     reason_style,
     style_axes,
+    text_width,
 )
 
 __all__ = ["TIME_DIMS", "plot_latitude_time"]
@@ -113,12 +117,13 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
     fs = fonts(w)
     n = len(panels)
     with mpl.rc_context(rc(fs)):
-        fig, axes = plt.subplots(1, n, figsize=(w, 0.6 * w if n == 1 else 0.5 * w + 0.4),
-                                 sharey=True, squeeze=False, layout="constrained")
+        fig, axes = plt.subplots(1, n, figsize=(w, 4.0), sharey=True, squeeze=False)
         axes = axes[0]
-        # Panel width left for the time axis: the figure less the latitude labels, the
-        # colour-bar padding and the gaps between panels.
-        axis = _time_axis(shown[tdim], (w - 0.6) / n - 0.1 * (n - 1), fs)
+        small, base = fs["small"], fs["base"]
+        left = line_height(base) + text_width(4, small) + 0.14
+        # Labels at the panels' ends reach half their width beyond them: the gap holds two halves.
+        right, gap = 0.15, text_width(4, small) + 0.08
+        axis = _time_axis(shown[tdim], (w - left - right - gap * (n - 1)) / n, fs)
         handles = {}
         spans = []
         for ax, b in zip(axes, panels):
@@ -152,7 +157,6 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
             ax.set_xlim(axis.edges[0], axis.edges[-1])
             ax.set_xticks(axis.ticks, axis.labels)
             ax.set_xticks(axis.minor, minor=True)
-            ax.set_xlabel(axis.label, fontsize=fs["base"])
             if b is not None:
                 ax.set_title(b, fontsize=fs["base"], loc="left")
             style_axes(ax, fs)
@@ -163,18 +167,34 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
         axes[0].yaxis.set_major_formatter(latitude_formatter())
         axes[0].set_ylabel("latitude", fontsize=fs["base"])
         cb_label = label if label is not None else axis_label(name, units, exp)
-        cb = fig.colorbar(mesh, ax=list(axes), orientation="horizontal", shrink=0.9, aspect=35,
-                          pad=0.02, extend=extend_of(below, above),
-                          ticks=colour_ticks(levels, w) / scale)
-        cb.set_label(cb_label, fontsize=fs["base"])
-        cb.ax.tick_params(labelsize=fs["small"], width=0.5, length=2)
-        cb.ax.xaxis.set_major_formatter(plain_formatter())
-        cb.outline.set_linewidth(0.5)
+        # Heights from the bottom: colour-bar label and ticks, the bar, the time axis's label
+        # and ticks; from the top: title, legend, panel titles.
+        cb_text = line_height(base) + 0.04 + line_height(small) + 0.04
+        cb_h = 0.1
+        bottom = cb_text + cb_h + 0.14 + line_height(base) + 0.04 + line_height(small) + 0.06
+        ncols = legend_columns([h.get_label() for h in handles.values()], fs, w)
+        legend_h = -(-len(handles) // ncols) * 1.3 * line_height(small) + 0.06 if handles else 0
+        title_h = line_height(fs["title"]) + 0.06 if title else 0.0
+        top = 0.06 + title_h + legend_h + (line_height(base) + 0.04 if panels != [None] else 0)
+        panel_h = 0.4 * w + 0.3 if n == 1 else 0.3 * w + 0.5
+        h = top + bottom + panel_h
+        fig.set_size_inches(w, h)
+        place_panels(fig, axes, left=left, right=right, bottom=bottom, top=top, gap=gap,
+                     stacked=False)
+        xlabel_y = cb_text + cb_h + 0.14
+        fig.text((left + (w - right)) / 2 / w, xlabel_y / h, axis.label, ha="center",
+                 va="bottom", fontsize=base)
+        span = w - left - right
+        cax = fig.add_axes(((left + 0.05 * span) / w, cb_text / h, 0.9 * span / w, cb_h / h),
+                           label="<colorbar>")
+        colorbar(fig, cax, mesh, cb_label, fs, extend=extend_of(below, above),
+                 ticks=colour_ticks(levels, w) / scale)
         if handles:
-            fig.legend(handles=list(handles.values()), loc="outside upper center",
-                       ncols=min(3, len(handles)), frameon=False, fontsize=fs["small"])
+            fig.legend(handles=list(handles.values()), loc="upper center",
+                       bbox_to_anchor=(0.5, 1 - (0.04 + title_h) / h), ncols=ncols,
+                       frameon=False, fontsize=small, borderaxespad=0.0, borderpad=0.0)
         if title:
-            fig.suptitle(title, fontsize=fs["title"])
+            fig.suptitle(title, fontsize=fs["title"], y=1 - 0.04 / h, va="top")
     return (fig, axes[0]) if n == 1 else (fig, axes)
 
 

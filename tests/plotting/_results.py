@@ -141,7 +141,8 @@ def _drawn_texts(fig):
     for leg in fig.legends:
         out += leg.get_texts()
     for ax in fig.axes:
-        for axis, (lo, hi) in ((ax.xaxis, sorted(ax.get_xlim())), (ax.yaxis, sorted(ax.get_ylim()))):
+        for axis, limits in ((ax.xaxis, ax.get_xlim()), (ax.yaxis, ax.get_ylim())):
+            lo, hi = sorted(limits)
             for tick in axis.get_major_ticks():
                 if lo - 1e-9 <= tick.get_loc() <= hi + 1e-9:
                     out.append(tick.label1)

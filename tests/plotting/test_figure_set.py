@@ -5,8 +5,11 @@ import matplotlib
 matplotlib.use("Agg")
 
 import matplotlib.pyplot as plt  # noqa: E402
+import pytest  # noqa: E402
 
 from sverdrup_kit import plotting  # noqa: E402
+
+from ._results import overlapping_texts  # noqa: E402
 
 
 def test_save_standard_figures(strict, tmp_path, result):
@@ -26,3 +29,13 @@ def test_standard_figures_of_the_real_pipeline(strict, tmp_path, world):
     res = diagnose(world).compute()
     paths = plotting.save_standard_figures(res, tmp_path, width="column", dpi=80)
     assert len(paths) == 6
+
+
+@pytest.mark.parametrize("width", ["column", "page"])
+def test_no_label_hides_another_or_is_cut_off(strict, result, width):
+    # Every standard figure, drawn as the command line draws it (common practice: a figure a
+    # journal accepts has no overlapping or clipped text).
+    for name in plotting.available_figures(result):
+        fig, _ = plotting.figure_set._FIGURES[name].draw(result, width, "auto")
+        assert overlapping_texts(fig) == [], name
+        plt.close(fig)

@@ -98,7 +98,8 @@ def test_ocean_mask_in_another_longitude_convention(strict, tmp_path, result):
     fig, ax = plotting.map_wind_stress_curl(result.wind_stress_curl, ocean_mask=mask)
     save(fig, tmp_path, "curl_mask_convention")
     with pytest.raises(ValueError, match="ocean_mask"):
-        plotting.map_wind_stress_curl(result.wind_stress_curl, ocean_mask=mask.isel(lon=slice(0, -1)))
+        plotting.map_wind_stress_curl(result.wind_stress_curl,
+                                      ocean_mask=mask.isel(lon=slice(0, -1)))
 
 
 def test_invented_world_never_gets_earth_coastlines(strict, tmp_path, result, monkeypatch):

@@ -18,7 +18,7 @@ def test_plot_transport_with_observations(strict, tmp_path, result):
     # The Skerrow Passage has no valid row, so by default it gets no (empty) panel.
     assert [a.get_title(loc="left") for a in axes] == ["Halcyon Ocean", "Lissom Ocean",
                                                       "Gulf of Maren"]
-    assert axes[0].get_ylabel() == "transport (Sv)"
+    assert axes[0].get_ylabel() == "northward transport (Sv)"
     names = {t.get_text() for t in fig.legends[0].get_texts()}
     assert {"Sverdrup interior", "western boundary current", "observed (\u00b1 spread)",
             "equatorial band (no Sverdrup balance)"} <= names
