@@ -20,7 +20,7 @@ from ._results import colorbar_label, save  # noqa: E402
 
 
 @pytest.mark.parametrize("width", ["column", "page", 5.0])
-def test_map_curl(strict, tmp_path, result, width):
+def test_map_wind_stress_curl(strict, tmp_path, result, width):
     fig, ax = plotting.map_wind_stress_curl(result, width=width)
     assert fig.get_figwidth() == pytest.approx(plotting.FIGURE_WIDTHS.get(width, width))
     label = colorbar_label(fig)
@@ -28,7 +28,7 @@ def test_map_curl(strict, tmp_path, result, width):
     save(fig, tmp_path, f"curl_{width}")
 
 
-def test_map_curl_colours_are_symmetric_about_zero(strict, result):
+def test_map_wind_stress_curl_colours_are_symmetric_about_zero(strict, result):
     fig, ax = plotting.map_wind_stress_curl(result)
     mesh = next(c for c in ax.collections if isinstance(getattr(c, "norm", None), BoundaryNorm))
     b = mesh.norm.boundaries
@@ -65,7 +65,7 @@ def test_map_wind_stress(strict, tmp_path, result):
     save(fig, tmp_path, "stress")
 
 
-def test_map_streamfunction_shades_where_sverdrup_fails(strict, tmp_path, result):
+def test_map_sverdrup_streamfunction_shades_where_sverdrup_fails(strict, tmp_path, result):
     fig, ax = plotting.map_sverdrup_streamfunction(result)
     assert colorbar_label(fig) == "Sverdrup streamfunction (Sv)"
     names = {t.get_text() for t in fig.legends[0].get_texts()}
@@ -74,7 +74,7 @@ def test_map_streamfunction_shades_where_sverdrup_fails(strict, tmp_path, result
     save(fig, tmp_path, "psi")
 
 
-def test_map_streamfunction_from_a_bare_dataarray(strict, tmp_path, result):
+def test_map_sverdrup_streamfunction_from_a_bare_dataarray(strict, tmp_path, result):
     fig, ax = plotting.map_sverdrup_streamfunction(result.sverdrup_streamfunction, width="page")
     assert colorbar_label(fig) == "Sverdrup streamfunction (Sv)"
     assert [t.get_text() for t in fig.legends[0].get_texts()] == ["no Sverdrup solution"]

@@ -13,7 +13,7 @@ from sverdrup_kit import plotting  # noqa: E402
 from ._results import OBS, save  # noqa: E402
 
 
-def test_plot_transport_with_observations(strict, tmp_path, result):
+def test_plot_interior_transport_with_observations(strict, tmp_path, result):
     fig, axes = plotting.plot_interior_transport(result, observations=OBS, width="column")
     # The Skerrow Passage has no valid row, so by default it gets no (empty) panel.
     assert [a.get_title(loc="left") for a in axes] == ["Halcyon Ocean", "Lissom Ocean",
@@ -28,7 +28,7 @@ def test_plot_transport_with_observations(strict, tmp_path, result):
     save(fig, tmp_path, "transport_channel")
 
 
-def test_plot_transport_accepts_the_observation_table(strict, tmp_path, result):
+def test_plot_interior_transport_accepts_the_observation_table(strict, tmp_path, result):
     obs = xr.Dataset(
         {"transport": ("current", [30.0]), "spread": ("current", [3.0]),
          "lat": ("current", [27.0]), "basin": ("current", ["Halcyon Ocean"])},
@@ -39,7 +39,7 @@ def test_plot_transport_accepts_the_observation_table(strict, tmp_path, result):
     save(fig, tmp_path, "transport_one")
 
 
-def test_plot_transport_accepts_a_dataframe(strict, tmp_path, result):
+def test_plot_interior_transport_accepts_a_dataframe(strict, tmp_path, result):
     pd = pytest.importorskip("pandas")
     fig, axes = plotting.plot_interior_transport(result, observations=pd.DataFrame(OBS))
     names = {t.get_text() for a in axes for t in a.texts}
@@ -47,7 +47,7 @@ def test_plot_transport_accepts_a_dataframe(strict, tmp_path, result):
     save(fig, tmp_path, "transport_df")
 
 
-def test_plot_transport_bad_observations(result):
+def test_plot_interior_transport_bad_observations(result):
     with pytest.raises(ValueError, match="observations"):
         plotting.plot_interior_transport(result, observations=[{"lat": 20, "transport": 3}])
     with pytest.raises(ValueError, match="basins"):

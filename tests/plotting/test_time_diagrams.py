@@ -15,7 +15,7 @@ from sverdrup_kit import plotting  # noqa: E402
 from ._results import colorbar_label, overlapping_texts, save  # noqa: E402
 
 
-def test_hovmoller_zonal_mean_and_basin(strict, tmp_path, world, result):
+def test_latitude_time_of_a_zonal_mean_and_of_basins(strict, tmp_path, world, result):
     fig, ax = plotting.plot_latitude_time(world.u)
     assert colorbar_label(fig).startswith("zonal mean eastward wind")
     assert [t.get_text() for t in ax.get_xticklabels()] == list("JFMAMJJASOND")
