@@ -54,20 +54,22 @@ _PC = ccrs.PlateCarree()
 class MapGrid:
     """A global or regional field laid out for drawing: rolled so no cell crosses the seam.
 
-    On a global grid the seam runs along a cell edge: through the longitude with most land
-    (so that basins are drawn whole), or next to ``central_longitude + 180`` when one is asked
-    for (the centre then moves by at most half a cell).
+    On a global grid the seam runs along a cell edge: next to ``central_longitude + 180`` when
+    one is asked for (the centre then moves by at most half a cell), else through the
+    longitude with most land (so that basins are drawn whole), rounded to 10 degrees so that
+    every map of one data set, whose land differs by a few cells, gets the same centre.
     """
 
     def __init__(self, lat, lon, periodic, land, central_longitude=None):
         self.lat, self.periodic = lat, periodic
         self.lat_e = np.clip(cell_edges(lat), -90, 90)
+        west = cell_edges(lon)[:-1]
         if periodic and central_longitude is None:
             band = np.abs(lat) < 60
             frac = land[band].mean(axis=0) if band.any() else land.mean(axis=0)
-            self.shift = int(np.argmax(frac))
-        elif periodic:
-            west = cell_edges(lon)[:-1]
+            seam = 10.0 * np.round(west[int(np.argmax(frac))] / 10.0)
+            central_longitude = seam - 180.0
+        if periodic:
             seam = float(central_longitude) + 180.0
             self.shift = int(np.argmin(np.abs((west - seam + 180.0) % 360.0 - 180.0)))
         else:
