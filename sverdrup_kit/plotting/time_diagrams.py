@@ -215,8 +215,8 @@ class _TimeAxis(NamedTuple):
 
 def _fits(n_labels: int, chars: int, panel_in: float, fs: dict) -> bool:
     """Whether n labels of ``chars`` characters fit side by side on a panel without touching
-    (a character is about 0.6 em wide; 0.12 in of space between labels)."""
-    return n_labels * (chars * 0.6 * fs["small"] / 72 + 0.12) <= panel_in
+    (a character is about 0.6 em wide; one em of space between labels)."""
+    return n_labels * (chars + 1.7) * 0.6 * fs["small"] / 72 <= panel_in
 
 
 def _cycle_axis(labels, panel_in, fs, label) -> _TimeAxis:
@@ -228,16 +228,28 @@ def _cycle_axis(labels, panel_in, fs, label) -> _TimeAxis:
     return _TimeAxis(x, cell_edges(x), ticks, [labels[int(i)] for i in ticks], x, label)
 
 
+def _month_axis(months, panel_in, fs) -> _TimeAxis:
+    """Month names of a cycle: "Jan" ... where they fit, else single letters if every month
+    fits, else every third (or sixth) month named, never every other initial ("J M M J")."""
+    n = len(months)
+    if _fits(n, 3, panel_in, fs):
+        return _cycle_axis([_MONTHS[m - 1] for m in months], panel_in, fs, "month")
+    if _fits(n, 1, panel_in, fs):
+        return _cycle_axis([_MONTHS[m - 1][0] for m in months], panel_in, fs, "month")
+    x = np.arange(n, dtype=float)
+    every = 3 if _fits(-(-n // 3), 3, panel_in, fs) else 6
+    ticks = x[::every]
+    return _TimeAxis(x, cell_edges(x), ticks, [_MONTHS[months[int(i)] - 1] for i in ticks], x,
+                     "month")
+
+
 def _time_axis(time: xr.DataArray, panel_in: float, fs: dict) -> _TimeAxis:
     """Positions, ticks and labels of a time axis that read at any record length."""
     n = time.size
     if time.name == "season" or time.dtype.kind in "US":
         return _cycle_axis([str(s) for s in time.values], panel_in, fs, str(time.name))
     if time.name == "month":
-        months = np.asarray(time.values, dtype=int)
-        short = _fits(n, 3, panel_in, fs)
-        return _cycle_axis([_MONTHS[m - 1] if short else _MONTHS[m - 1][0] for m in months],
-                           panel_in, fs, "month")
+        return _month_axis(np.asarray(time.values, dtype=int), panel_in, fs)
     try:
         year = time.dt.year.values.astype(float)
         month = time.dt.month.values
@@ -252,9 +264,7 @@ def _time_axis(time: xr.DataArray, panel_in: float, fs: dict) -> _TimeAxis:
     if n <= 12 and np.unique(month).size == n and np.unique(year).size == 1:
         # Twelve months (or fewer) of one year: a climatology, or one year's seasonal cycle;
         # the year of a climatology is a placeholder, so it is left out.
-        short = _fits(n, 3, panel_in, fs)
-        labels = [_MONTHS[m - 1] if short else _MONTHS[m - 1][0] for m in month]
-        return _cycle_axis(labels, panel_in, fs, "month")
+        return _month_axis(month, panel_in, fs)
     x = year + (month - 1 + frac) / 12.0
     edges = cell_edges(x) if n > 1 else np.array([x[0], x[0] + 1 / 12])
     first, last = int(np.floor(edges[0])), int(np.ceil(edges[-1]))
