@@ -15,11 +15,15 @@ from __future__ import annotations
 
 import argparse
 import os
+import sys
 import tempfile
 import time
 import warnings
+from pathlib import Path
 
 os.environ.setdefault("MPLBACKEND", "Agg")
+# The data recipes live beside the package, not in it: make them importable from any folder.
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 from sverdrup_kit.pipeline import diagnose  # noqa: E402
 from sverdrup_kit.plotting import available_figures, save_standard_figures  # noqa: E402
