@@ -39,3 +39,25 @@ def test_no_label_hides_another_or_is_cut_off(strict, result, width):
         fig, _ = plotting.figure_set._FIGURES[name].draw(result, width, "auto")
         assert overlapping_texts(fig) == [], name
         plt.close(fig)
+
+
+def test_chosen_figures_and_vector_formats(strict, tmp_path, result):
+    paths = plotting.save_standard_figures(
+        result, tmp_path, figures=["interior_transport_by_time", "wind_stress_curl_map"],
+        width="column", fmt="svg")
+    assert [p.name for p in paths] == ["interior_transport_by_time.svg",
+                                       "wind_stress_curl_map.svg"]
+    # SVG sizes are in points, 72 to the inch: a journal column is 3.5 in = 252 pt.
+    head = paths[1].read_text()[:2000]
+    assert 'width="252pt"' in head
+
+
+def test_bad_figure_choices_name_the_valid_ones(result, tmp_path):
+    with pytest.raises(ValueError, match="wind_stress_curl_map"):
+        plotting.save_standard_figures(result, tmp_path, figures=["curl"])
+    with pytest.raises(ValueError, match="interior_transport_by_time"):
+        plotting.save_standard_figures(result[["interior_transport"]], tmp_path,
+                                       figures=["interior_transport_by_time"])
+    with pytest.raises(ValueError, match="fmt"):
+        plotting.save_standard_figures(result, tmp_path, fmt="jpeg")
+    assert list(tmp_path.iterdir()) == []

@@ -16,7 +16,7 @@ from matplotlib.colors import BoundaryNorm  # noqa: E402
 from sverdrup_kit import plotting  # noqa: E402
 from sverdrup_kit.plotting import _coastlines  # noqa: E402
 
-from ._results import colorbar_label, save  # noqa: E402
+from ._results import colorbar_label, overlapping_texts, save  # noqa: E402
 
 
 @pytest.mark.parametrize("width", ["column", "page", 5.0])
@@ -151,3 +151,12 @@ def test_bad_arguments_name_themselves(result):
     with pytest.raises(ValueError, match="time"):
         plotting.plot_latitude_time(result.interior_transport)
     plt.close("all")
+
+
+def test_titles_legends_and_labels_do_not_collide(strict, result):
+    fig, ax = plotting.map_sverdrup_streamfunction(
+        result, width="column", title="Sverdrup streamfunction, annual mean")
+    assert overlapping_texts(fig) == []
+    fig, ax = plotting.map_field(result.ekman_pumping, projection="platecarree", width="page",
+                                 title="Ekman pumping")
+    assert overlapping_texts(fig) == []
