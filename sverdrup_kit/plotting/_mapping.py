@@ -223,9 +223,15 @@ def draw_land_and_coast(ax, grid: MapGrid, land: np.ndarray, mode: str):
     cells_patch(ax, grid, land, facecolor=LAND_COLOUR, edgecolor="0.3" if outline else "none",
                 linewidth=0.4 if outline else 0, zorder=3)
     if mode == "gshhs":
-        ax.add_artist(mpatches.PathPatch(_gshhs_path(gshhs_folder(), ax.projection),
-                                         fill=False, edgecolor="0.15", linewidth=0.35,
-                                         zorder=4, transform=ax.transData))
+        coast = mpatches.PathPatch(_gshhs_path(gshhs_folder(), ax.projection), fill=False,
+                                   edgecolor="0.15", linewidth=0.35, zorder=4,
+                                   transform=ax.transData)
+        ax.add_artist(coast)
+        if not grid.periodic:
+            # A regional map's axes reach beyond its data on a curved projection: no coast
+            # is drawn where there is no data to read it against.
+            region = _cells_geometry(grid, np.ones(land.shape, bool))
+            coast.set_clip_path(_path(grid, ax.projection, region), ax.transData)
 
 
 def _lon_text(lon: float) -> str:
