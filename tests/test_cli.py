@@ -111,7 +111,8 @@ def test_chosen_figures_in_pdf_at_column_width(tmp_path):
     assert code == 0
     figures = sorted(p.name for p in tmp_path.iterdir() if p.suffix != ".nc")
     assert figures == ["interior_transport_by_latitude.pdf", "wind_stress_curl_map.pdf"]
-    # A PDF page is sized in points, 72 to the inch: a journal column is 3.5 in = 252 pt.
+    # A PDF page is sized in points, 72 to the inch (ISO 32000-1:2008, 8.3.2.3, from memory):
+    # a journal column is 3.5 in = 252 pt.
     head = (tmp_path / "wind_stress_curl_map.pdf").read_bytes()
     width = float(head.split(b"/MediaBox [")[1].split()[2])
     assert width == pytest.approx(252.0, abs=0.5)

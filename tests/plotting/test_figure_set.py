@@ -47,7 +47,8 @@ def test_chosen_figures_and_vector_formats(strict, tmp_path, result):
         width="column", fmt="svg")
     assert [p.name for p in paths] == ["interior_transport_by_time.svg",
                                        "wind_stress_curl_map.svg"]
-    # SVG sizes are in points, 72 to the inch: a journal column is 3.5 in = 252 pt.
+    # SVG sizes here are in points, 72 to the inch (CSS units as SVG 1.1 section 7.10 defines
+    # them, from memory): a journal column is 3.5 in = 252 pt.
     head = paths[1].read_text()[:2000]
     assert 'width="252pt"' in head
 
