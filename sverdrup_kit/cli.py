@@ -48,7 +48,7 @@ def latitude_label(lat: float, decimals: int = 1) -> str:
 #: equal), listed here so that --help does not import matplotlib and cartopy.
 FIGURE_NAMES = ("wind_stress_map", "wind_stress_curl_map", "ekman_pumping_map",
                 "sverdrup_streamfunction_map", "interior_transport_by_latitude",
-                "interior_transport_by_time")
+                "interior_transport_by_time", "rossby_crossing_time_by_latitude")
 
 
 def _figure_width_arg(text: str):

@@ -1,8 +1,8 @@
 """Figures of the Rossby-wave adjustment: crossing times, adjusted rows, the lagged response.
 
-Same conventions as the other figures (:mod:`sverdrup_kit.plotting.maps`: print widths, fonts set on each
-figure, units from the data, rows where the Sverdrup relation is not expected shaded and
-named).
+Same conventions as the other figures (:mod:`sverdrup_kit.plotting.maps`: print widths, fonts
+set on each figure, units from the data, rows where the Sverdrup relation is not expected
+shaded and named).
 """
 
 from __future__ import annotations

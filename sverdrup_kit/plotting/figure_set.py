@@ -14,6 +14,7 @@ from typing import Callable, NamedTuple
 import matplotlib.pyplot as plt
 import xarray as xr
 
+from .adjustment import plot_crossing_time
 from .maps import (
     map_ekman_pumping,
     map_sverdrup_streamfunction,
@@ -59,9 +60,23 @@ _FIGURES = {
         ("interior_transport_by_time",),
         lambda data, width, coastlines: plot_latitude_time(
             data["interior_transport_by_time"], row_status=data.get("row_status"),
-            width=width),
-        "interior transport of each basin against latitude and time"),
+            width=width, adjusted=_adjusted_at_the_step(data)),
+        "interior transport of each basin against latitude and time, with the rows that had "
+        "time to adjust"),
+    "rossby_crossing_time_by_latitude": _Figure(
+        ("basin_crossing_time",),
+        lambda data, width, coastlines: plot_crossing_time(data, width=width),
+        "Rossby-wave crossing time of each basin against latitude"),
 }
+
+
+def _adjusted_at_the_step(data: xr.Dataset):
+    """``sverdrup_adjusted`` at the time scale of the record's steps, when the result has it."""
+    flags = data.get("sverdrup_adjusted")
+    scale = data["interior_transport_by_time"].attrs.get("adjustment_time_scale")
+    if flags is None or scale not in flags["time_scale"].values:
+        return None
+    return flags.sel(time_scale=scale)
 
 #: The standard figures, by name (also the file name), and what each shows.
 STANDARD_FIGURES = {name: f.shows for name, f in _FIGURES.items()}

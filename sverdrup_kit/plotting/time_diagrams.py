@@ -35,12 +35,13 @@ from ._style import (
     style_axes,
     text_width,
 )
+from .adjustment import mark_adjusted_rows
 
 __all__ = ["TIME_DIMS", "plot_latitude_time"]
 
 
 def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cmap=None,
-                       robust: float = 98.0, vmax=None, title=None, label=None):
+                       robust: float = 98.0, vmax=None, title=None, label=None, adjusted=None):
     """Latitude-time (Hovmoller) diagram of a seasonal cycle or a record of any length.
 
     The time axis reads at any length: a climatology (12 months of one year, or a ``month``
@@ -63,6 +64,10 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
     width : "column", "page" or float
     cmap, robust, vmax, label, title
         As in :func:`~sverdrup_kit.plotting.maps.map_field`.
+    adjusted : xarray.DataArray (basin, lat), optional
+        ``sverdrup_adjusted`` of :func:`~sverdrup_kit.pipeline.diagnose` at the time scale of
+        the data's steps: a strip along each panel's right edge shows which rows had time to
+        adjust to Sverdrup balance (:func:`~sverdrup_kit.plotting.adjustment.mark_adjusted_rows`).
 
     Returns
     -------
@@ -150,6 +155,9 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
                                    edgecolor="0.35", lw=0, zorder=0.5)
                         handles.setdefault(shade.label, shade.patch())
                         spans.append((st_lat[i0] - dl, st_lat[i1] + dl))
+            if adjusted is not None and b is not None and b in [str(x) for x in
+                                                                adjusted["basin"].values]:
+                mark_adjusted_rows(ax, adjusted.sel(basin=b), fs=fs, handles=handles)
             finite_rows = np.isfinite(vals).any(axis=1)
             if finite_rows.any():
                 pad = np.median(np.diff(lat)) if lat.size > 1 else 1.0
