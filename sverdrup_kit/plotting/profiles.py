@@ -122,9 +122,9 @@ def plot_interior_transport(data, *, basins=None, observations=None, time="mean"
         rows = -(-len(handles) // ncols)
         small, base = fs["small"], fs["base"]
         legend_h = rows * 1.3 * line_height(small) + 0.1
-        # Room for the tick labels (up to four characters, e.g. "-100"), the axis labels, each
-        # panel's title and the legend.
-        left = line_height(base) + text_width(4, small) + 0.14
+        # Room for the tick labels (up to "-100": a minus sign is wider than a digit, so five
+        # characters' worth), the axis labels, each panel's title and the legend.
+        left = line_height(base) + text_width(5, small) + 0.14
         bottom = line_height(small) + 0.06 + line_height(base) + 0.04 + legend_h
         title_h = line_height(base) + 0.04
         top = 0.06 + title_h + (line_height(fs["title"]) + 0.04 if title else 0.0)

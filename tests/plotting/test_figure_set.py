@@ -29,6 +29,11 @@ def test_standard_figures_of_the_real_pipeline(strict, tmp_path, world):
     res = diagnose(world).compute()
     paths = plotting.save_standard_figures(res, tmp_path, width="column", dpi=80)
     assert [p.stem for p in paths] == list(plotting.STANDARD_FIGURES)
+    # Its transports reach -100 Sv and more: wider tick labels than the stand-in's.
+    for name in ("interior_transport_by_latitude", "interior_transport_by_time"):
+        fig, _ = plotting.figure_set._FIGURES[name].draw(res, "column", "auto")
+        assert overlapping_texts(fig) == [], name
+        plt.close(fig)
 
 
 @pytest.mark.parametrize("width", ["column", "page"])
