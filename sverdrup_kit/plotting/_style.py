@@ -58,10 +58,10 @@ _SVERDRUP_UNITS = {"1e6 m3 s-1": 1.0, "1e6 m3/s": 1.0, "sverdrup": 1.0, "sverdru
 #: How each row_status meaning is named on figures and how its region is shaded: hatching on a
 #: pale neutral ground, so that it cannot be mistaken for a value of a diverging colour map.
 REASONS = {
-    # V = curl / (rho0 beta) stays finite at the equator; what fails there is the split into
-    # Ekman and geostrophic parts (both go as 1/f) and the balance itself (undercurrents,
-    # nonlinearity, friction), so the legend names the balance, not f.
-    "equatorial_band": Shade("equatorial band (no Sverdrup balance)", "#ececec", "...."),
+    # V = curl/(rho0 beta) stays finite at the equator; the Ekman part (1/f) and equatorial
+    # dynamics are what fail there (the wording of row_status and the guide).
+    "equatorial_band": Shade("equatorial band (Ekman ~ 1/f, equatorial dynamics)", "#ececec",
+                             "...."),
     "no_eastern_coast": Shade("no eastern coast", "#ececec", "\\\\\\"),
     "too_narrow": Shade("basin too narrow", "#ececec", "xxxx"),
     "outside": Shade("outside the basins", "#f7f7f7", "||||"),

@@ -231,8 +231,7 @@ def map_ekman_pumping(data, *, equatorial_half_width=None, limits_poleward_of: f
     band = equatorial_half_width_of(data if ds is not None else da, equatorial_half_width)
     kw.setdefault("cmap", cmocean.cm.delta)
     kw.setdefault("to_per_year", True)
-    # Here f -> 0 is the reason: the pumping curl(tau / f) / rho0 grows without bound.
-    kw.setdefault("missing_label", f"equatorial band, |lat| < {band:g}\u00b0 (pumping \u221d 1/f)")
+    kw.setdefault("missing_label", f"{REASONS['equatorial_band'].label}, |lat| < {band:g}\u00b0")
     reduced = reduce_time(da, kw.get("time", "mean"), "data")
     if "ocean_mask" not in kw:
         # Only cells inside the band are shaded as the band: elsewhere a missing value is land

@@ -55,7 +55,7 @@ def test_map_ekman_pumping_from_a_bare_dataarray(strict, tmp_path, result):
     # Without a Dataset the ocean in the band is inferred from the rows on either side.
     fig, ax = plotting.map_ekman_pumping(result.ekman_pumping, width="page")
     names = [t.get_text() for t in fig.legends[0].get_texts()]
-    assert names == ["equatorial band, |lat| < 3\u00b0 (pumping \u221d 1/f)"]
+    assert names == ["equatorial band (Ekman ~ 1/f, equatorial dynamics), |lat| < 3\u00b0"]
     save(fig, tmp_path, "pumping_da")
 
 
@@ -69,7 +69,7 @@ def test_map_sverdrup_streamfunction_shades_where_sverdrup_fails(strict, tmp_pat
     fig, ax = plotting.map_sverdrup_streamfunction(result)
     assert colorbar_label(fig) == "Sverdrup streamfunction (Sv)"
     names = {t.get_text() for t in fig.legends[0].get_texts()}
-    assert {"equatorial band (no Sverdrup balance)", "no eastern coast",
+    assert {"equatorial band (Ekman ~ 1/f, equatorial dynamics)", "no eastern coast",
             "western boundary-current zone"} <= names
     save(fig, tmp_path, "psi")
 

@@ -21,7 +21,7 @@ def test_plot_interior_transport_with_observations(strict, tmp_path, result):
     assert axes[0].get_ylabel() == "northward transport (Sv)"
     names = {t.get_text() for t in fig.legends[0].get_texts()}
     assert {"Sverdrup interior", "western boundary current", "observed (\u00b1 spread)",
-            "equatorial band (no Sverdrup balance)"} <= names
+            "equatorial band (Ekman ~ 1/f, equatorial dynamics)"} <= names
     save(fig, tmp_path, "transport")
     fig, axes = plotting.plot_interior_transport(result, basins=["Skerrow Passage"])
     assert "no eastern coast" in {t.get_text() for t in fig.legends[0].get_texts()}
