@@ -14,6 +14,8 @@ marine operations.
 from .constants import AIR_DENSITY, EARTH_RADIUS, OMEGA, RHO0, SVERDRUP_IN_M3_S
 from .geometry.basins import basin_ids
 from .geometry.curvilinear import CurvilinearGrid
+from .geometry.integral import EarthBasinsNotice, sverdrup_geometry
+from .geometry.land import island_table
 from .geometry.grid import SphericalGrid, beta_parameter, coriolis_parameter
 from .errors import (
     GridError,
@@ -74,6 +76,9 @@ __all__ = [
     "balance_check",
     "balance_section_observations",
     "basin_ids",
+    "EarthBasinsNotice",
+    "island_table",
+    "sverdrup_geometry",
     "beta_parameter",
     "boundary_current",
     "boundary_current_observations",

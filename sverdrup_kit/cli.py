@@ -135,7 +135,8 @@ def _parser() -> argparse.ArgumentParser:
                         "coefficient such as 1.3e-3 (default: large-pond-1981)")
     d.add_argument("--air-density", type=float, default=None, help="kg m-3 (default 1.22)")
     d.add_argument("--basins", default=None,
-                   help="'earth' for named Atlantic/Pacific/Indian basins; default: connected "
+                   help="'earth' for named Atlantic/Pacific/Indian basins; default: the Earth "
+                        "basins when the mask shows the Earth's continents, else connected "
                         "ocean regions")
     d.add_argument("--water-density", type=float, default=None,
                    help="reference sea-water density rho0, kg m-3 (default 1025)")

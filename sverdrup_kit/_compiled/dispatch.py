@@ -3,7 +3,7 @@
 Every kernel the wrappers call goes through here. The compiled twins (:mod:`.jit`) are imported
 only on the first call, so importing :mod:`sverdrup_kit` does not import numba; setting
 ``SVERDRUP_KIT_JIT=0`` sends every call through the NumPy statement of the method.
-Imports run one way: dispatch -> (curl, scan, jit) -> stencil.
+Imports run one way: dispatch -> (curl, scan, geometry, jit, jit_geometry) -> stencil.
 """
 
 from __future__ import annotations
@@ -11,6 +11,7 @@ from __future__ import annotations
 import os
 
 from .curl import curl_kernel_numpy
+from .geometry import label_links_numpy, row_groups_numpy
 from .scan import fill_from_neighbours_numpy, westward_scan_numpy
 
 #: Setting this environment variable to 0 sends every kernel through the NumPy reference path.
@@ -78,3 +79,29 @@ def westward_scan(v, dx, cells, run_starts):
 
     kernel = jit.westward_scan if jit_enabled() else westward_scan_numpy
     return kernel(v, dx, cells, run_starts)
+
+
+def label_links(mask, cut_east, cut_north, *, periodic, diagonal=False):
+    """Connected components without cut links: see :func:`.geometry.label_links_numpy`.
+
+    Runs the compiled twin in :mod:`sverdrup_kit._compiled.jit_geometry` (the same labels)
+    unless the environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    if jit_enabled():
+        from .jit_geometry import label_links as kernel
+    else:
+        kernel = label_links_numpy
+    return kernel(mask, cut_east, cut_north, periodic, diagonal)
+
+
+def row_groups(member, cls, land_labels, dx, *, periodic, coast_link):
+    """Runs of a row set joined across large islands: see :func:`.geometry.row_groups_numpy`.
+
+    Runs the compiled twin in :mod:`sverdrup_kit._compiled.jit_geometry` (the same arrays)
+    unless the environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    if jit_enabled():
+        from .jit_geometry import row_groups as kernel
+    else:
+        kernel = row_groups_numpy
+    return kernel(member, cls, land_labels, dx, periodic, coast_link)

@@ -114,40 +114,82 @@ def sum_groups(totals, group_runs, group_starts, group_slot, n_slots):
     return out
 
 
-def sign_changes(t, lat, valid, *, max_gyre_boundaries):
-    """Latitudes where ``t`` changes sign between neighbouring valid rows.
+def coverage(tx, ty, cells, starts, slot, n_slots):
+    """Share of the cells of each slot where both ``tx`` and ``ty`` (..., ny, nx) are finite;
+    NaN for slots with no cells.
+
+    ``cells`` (flat indices) are sorted by slot; ``starts`` gives each slot's first cell and
+    ``slot`` its number (0..n_slots-1).
+    """
+    tx = np.asarray(tx)
+    lead = tx.shape[:-2]
+    out = np.full(lead + (n_slots,), np.nan)
+    if starts.size:
+        flat = (np.isfinite(tx.reshape(lead + (-1,))[..., cells])
+                & np.isfinite(np.asarray(ty).reshape(lead + (-1,))[..., cells])
+                ).astype(np.float64)
+        counts = np.diff(np.append(starts, cells.size))
+        out[..., slot] = np.add.reduceat(flat, starts, axis=-1) / counts
+    return out
+
+
+def gyre_boundaries(t, valid, *, lat, max_gyre_boundaries, threshold):
+    """Sign changes of ``t`` that reach at least ``threshold`` on both sides.
 
     Parameters
     ----------
     t : ndarray (..., nb, ny)
         Transport by basin and row, NaN where unknown.
+    valid : ndarray of bool (..., nb, ny)
+        Rows that may be used; a crossing is never bridged across a row that is not valid.
     lat : ndarray (ny,)
         Ascending row latitudes.
-    valid : ndarray of bool (nb, ny)
-        Rows that may be used; a crossing needs two neighbouring valid rows.
     max_gyre_boundaries : int
         Length of the output's last axis.
+    threshold : float
+        Rows with ``|t| < threshold`` are passed over: a boundary lies between two valid rows
+        of opposite sign, each at least ``threshold`` in size, with only valid rows between
+        them. Its latitude is the middle one of the raw sign changes between them (linear
+        interpolation between neighbouring rows). ``threshold=0`` gives every sign change.
 
     Returns
     -------
     crossings : ndarray (..., nb, max_gyre_boundaries)
-        Latitudes by linear interpolation between the two rows, south to north, NaN-padded.
+        South to north, NaN-padded.
     count : ndarray (..., nb), int64
-        Number of sign changes found (may exceed ``max_gyre_boundaries``).
     """
     t = np.asarray(t, dtype=np.float64)
-    a, b = t[..., :-1], t[..., 1:]
-    pair = valid[:, :-1] & valid[:, 1:]
-    with np.errstate(invalid="ignore"):
-        hit = pair & (a * b < 0)
-        frac = a / (a - b)
-    y = lat[:-1] + frac * np.diff(lat)
-    y = np.where(hit, y, np.nan)
-    count = hit.sum(axis=-1).astype(np.int64)
-    # Sorting puts NaN last, so the found latitudes come first in ascending order.
-    y = np.sort(y, axis=-1)
-    k = y.shape[-1]
-    if k >= max_gyre_boundaries:
-        return y[..., :max_gyre_boundaries], count
-    pad = np.full(y.shape[:-1] + (max_gyre_boundaries - k,), np.nan)
-    return np.concatenate([y, pad], axis=-1), count
+    valid = np.broadcast_to(np.asarray(valid, dtype=bool), t.shape)
+    shape = t.shape[:-1]
+    ny = t.shape[-1]
+    tt = t.reshape(-1, ny)
+    vv = valid.reshape(-1, ny)
+    out = np.full((tt.shape[0], max_gyre_boundaries), np.nan)
+    count = np.zeros(tt.shape[0], dtype=np.int64)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        a, b = tt[:, :-1], tt[:, 1:]
+        raw = vv[:, :-1] & vv[:, 1:] & (a * b < 0)
+        y_raw = lat[:-1] + a / (a - b) * np.diff(lat)
+    if threshold <= 0:
+        # Every sign change: sorting puts NaN last, found latitudes first in ascending order.
+        y = np.sort(np.where(raw, y_raw, np.nan), axis=-1)[:, :max_gyre_boundaries]
+        out[:, : y.shape[1]] = y
+        return (out.reshape(shape + (max_gyre_boundaries,)),
+                raw.sum(axis=-1).astype(np.int64).reshape(shape))
+    for s in range(tt.shape[0]):
+        v = vv[s] & np.isfinite(tt[s])
+        seg = np.cumsum(~v)
+        keep = np.flatnonzero(v & (np.abs(tt[s]) >= threshold))
+        if keep.size < 2:
+            continue
+        p, q = keep[:-1], keep[1:]
+        hit = (seg[p] == seg[q]) & (np.sign(tt[s, p]) != np.sign(tt[s, q]))
+        found = []
+        for i, k in zip(p[hit], q[hit]):
+            r = i + np.flatnonzero(raw[s, i:k])
+            if r.size:
+                found.append(y_raw[s, r[(r.size - 1) // 2]])
+        count[s] = len(found)
+        n = min(len(found), max_gyre_boundaries)
+        out[s, :n] = found[:n]
+    return out.reshape(shape + (max_gyre_boundaries,)), count.reshape(shape)

@@ -12,15 +12,15 @@ integral of the Sverdrup relation needs settled before it starts:
 * in each basin row, which runs of ocean cells make up the open basin, which are marginal seas
   behind a peninsula, and whether the row has an eastern and a western coast at all.
 
-Connectivity: ocean cells connect through faces (4 neighbours), land cells also through corners
-(8 neighbours), so a diagonal chain of land cells is a wall and a diagonal chain of ocean cells
-is not a passage. Longitude wraps when the grid is periodic.
+Connectivity: ocean cells connect through faces (4 neighbours); land cells connect through
+faces too by default (see :mod:`.land`). Longitude wraps when the grid is periodic. Land
+classes live in :mod:`.land`, the rows of the westward integral in :mod:`.rows`, the Earth's
+tables in :mod:`.earth`.
 """
 
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass
 
 import numpy as np
 import xarray as xr
@@ -28,7 +28,25 @@ from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
 from .coords import GridError, matching_positions, to_canonical
+from .earth import COUNTED, EARTH_SEAS, EXCLUDED
 from .grid import SphericalGrid
+from .land import (  # noqa: F401  (re-exported: the land classes used with basins)
+    CONTINENT,
+    CONTINENT_MIN_AREA,
+    ISLAND_MIN_AREA,
+    LARGE_ISLAND,
+    OCEAN,
+    SMALL_ISLAND,
+    land_bodies,
+)
+from .lines import label_cells, line_cuts
+from .rows import (  # noqa: F401  (re-exported for the wrappers)
+    CELL_CLASS,
+    ROW_STATUS,
+    RowPlan,
+    find_groups,
+    plan_rows,
+)
 
 __all__ = [
     "basin_ids",
@@ -40,16 +58,6 @@ __all__ = [
     "MIN_WIDTH",
     "SEPARATE_OCEAN_AREA",
 ]
-
-#: Land bodies smaller than this (km2) are small islands: the westward integral runs across them
-#: with stress filled in from the surrounding ocean. About the size of Iceland or Cuba, so that
-#: Hawaii, the Canaries or Taiwan are crossed and New Zealand, Japan or Madagascar are not
-#: (our choice; on a 2 degree grid one cell at 30N is about 4.3e4 km2).
-ISLAND_MIN_AREA = 1.0e5
-
-#: Land bodies at least this large (km2) are continents: seas behind them in a row are marginal.
-#: Australia (7.7e6 km2) is the smallest continent, Greenland (2.2e6 km2) the largest island.
-CONTINENT_MIN_AREA = 5.0e6
 
 #: Rows whose basin interior is narrower than this (km) are left empty: the Sverdrup interior
 #: needs a basin much wider than its western boundary layer (tens to a hundred km; our choice).
@@ -112,140 +120,24 @@ EARTH_BASIN_SEEDS = {
     "indian": [(75.0, -20.0)],
 }
 
-# Land classes.
-OCEAN, SMALL_ISLAND, LARGE_ISLAND, CONTINENT = 0, 1, 2, 3
 
 
-# --------------------------------------------------------------------------------------------
-# Connected components on the grid graph
-# --------------------------------------------------------------------------------------------
+def classify_land(ocean, grid: SphericalGrid, *, island_min_area_km2=ISLAND_MIN_AREA,
+                  continent_min_area_km2=CONTINENT_MIN_AREA, connectivity=4,
+                  land_classes=None, earth=None):
+    """Class of every cell (OCEAN, SMALL_ISLAND, LARGE_ISLAND or CONTINENT) and land labels.
 
-
-def label_cells(mask, *, periodic, diagonal=False, cut_east=None, cut_north=None):
-    """Connected components of the True cells of ``mask`` (ny, nx).
-
-    Parameters
-    ----------
-    mask : ndarray of bool (ny, nx)
-    periodic : bool
-        Longitude wraps: the last column neighbours the first.
-    diagonal : bool
-        Also connect cells that share only a corner (used for land).
-    cut_east, cut_north : ndarray of bool (ny, nx), optional
-        Links removed: between (j, i) and (j, i+1) resp. (j, i) and (j+1, i).
-
-    Returns
-    -------
-    labels : ndarray of int (ny, nx)
-        0..n-1 on True cells, -1 elsewhere.
-    n : int
+    A thin view of :func:`~sverdrup_kit.geometry.land.land_bodies`.
     """
-    mask = np.asarray(mask, dtype=bool)
-    ny, nx = mask.shape
-    ids = np.arange(ny * nx).reshape(ny, nx)
-    rows, cols = [], []
-
-    def link(a_sl, b_sl, keep):
-        ok = mask[a_sl] & mask[b_sl] & keep
-        rows.append(ids[a_sl][ok])
-        cols.append(ids[b_sl][ok])
-
-    full = np.ones((ny, nx), dtype=bool)
-    ce = ~cut_east if cut_east is not None else full
-    cn = ~cut_north if cut_north is not None else full
-    link((slice(None), slice(0, nx - 1)), (slice(None), slice(1, nx)), ce[:, : nx - 1])
-    if periodic:
-        link((slice(None), slice(nx - 1, nx)), (slice(None), slice(0, 1)), ce[:, nx - 1 :])
-    link((slice(0, ny - 1), slice(None)), (slice(1, ny), slice(None)), cn[: ny - 1])
-    if diagonal:
-        shifted = np.roll(mask, -1, axis=1)
-        sid = np.roll(ids, -1, axis=1)
-        for dj in (1, -1):
-            a = slice(0, ny - 1) if dj == 1 else slice(1, ny)
-            b = slice(1, ny) if dj == 1 else slice(0, ny - 1)
-            ok = mask[a] & shifted[b]
-            if not periodic:
-                ok[:, -1] = False
-            rows.append(ids[a][ok])
-            cols.append(sid[b][ok])
-    r = np.concatenate(rows)
-    c = np.concatenate(cols)
-    graph = coo_matrix((np.ones(r.size, dtype=np.int8), (r, c)), shape=(ny * nx, ny * nx))
-    _, comp = connected_components(graph, directed=False)
-    comp = comp.reshape(ny, nx)
-    labels = np.full((ny, nx), -1, dtype=np.int64)
-    uniq, inv = np.unique(comp[mask], return_inverse=True)
-    labels[mask] = inv
-    return labels, int(uniq.size)
-
-
-# --------------------------------------------------------------------------------------------
-# Land: small islands, large islands, continents
-# --------------------------------------------------------------------------------------------
-
-
-def classify_land(ocean, grid: SphericalGrid, *, island_min_area_km2, continent_min_area_km2):
-    """Class of every cell: OCEAN, SMALL_ISLAND, LARGE_ISLAND or CONTINENT, and land labels.
-
-    Areas are exact spherical cell areas summed over 8-connected land bodies. A land body that
-    touches the edge of a regional grid (not the poles) is cut by the edge, its size unknown: it
-    is taken as a continent.
-    """
-    land = ~ocean
-    labels, n = label_cells(land, periodic=grid.periodic, diagonal=True)
-    area_km2 = np.bincount(labels[land], weights=grid.cell_area[land] / 1e6, minlength=n)
-    edge = np.zeros(n, dtype=bool)
-    if not grid.periodic:
-        edge[labels[:, 0][labels[:, 0] >= 0]] = True
-        edge[labels[:, -1][labels[:, -1] >= 0]] = True
-    if grid.lat_edges[0] > -90.0 + 1e-6:
-        edge[labels[0][labels[0] >= 0]] = True
-    if grid.lat_edges[-1] < 90.0 - 1e-6:
-        edge[labels[-1][labels[-1] >= 0]] = True
-    body = np.where(
-        edge | (area_km2 >= continent_min_area_km2),
-        CONTINENT,
-        np.where(area_km2 < island_min_area_km2, SMALL_ISLAND, LARGE_ISLAND),
-    )
-    cls = np.full(ocean.shape, OCEAN, dtype=np.int8)
-    cls[land] = body[labels[land]]
-    return cls, labels
+    lb = land_bodies(ocean, grid, island_min_area_km2=island_min_area_km2,
+                     continent_min_area_km2=continent_min_area_km2, connectivity=connectivity,
+                     land_classes=land_classes, earth=earth)
+    return lb.cls, lb.labels
 
 
 # --------------------------------------------------------------------------------------------
 # Basins
 # --------------------------------------------------------------------------------------------
-
-
-def _line_cuts(grid: SphericalGrid, lines):
-    """Links between neighbouring cell centres that cross any of ``lines`` (lon, lat vertices)."""
-    ny, nx = grid.shape
-    lat, lon = grid.lat, grid.lon
-    cut_e = np.zeros((ny, nx), dtype=bool)
-    cut_n = np.zeros((ny, nx), dtype=bool)
-    lon_next = np.empty(nx)
-    lon_next[:-1] = lon[1:]
-    lon_next[-1] = lon[0] + 360.0 if grid.periodic else np.inf
-    for verts in lines:
-        v = np.asarray(verts, dtype=np.float64)
-        for (x1, y1), (x2, y2) in zip(v[:-1], v[1:]):
-            for shift in (-720.0, -360.0, 0.0, 360.0, 720.0):
-                xa, xb = x1 + shift, x2 + shift
-                if y1 != y2:
-                    lo, hi = min(y1, y2), max(y1, y2)
-                    rows = np.flatnonzero((lat >= lo) & (lat < hi))
-                    xc = xa + (lat[rows] - y1) * (xb - xa) / (y2 - y1)
-                    for j, x in zip(rows, xc):
-                        hit = (lon <= x) & (x < lon_next)
-                        cut_e[j, hit] = True
-                if xa != xb:
-                    lo, hi = min(xa, xb), max(xa, xb)
-                    cols = np.flatnonzero((lon >= lo) & (lon < hi))
-                    yc = y1 + (lon[cols] - xa) * (y2 - y1) / (xb - xa)
-                    for i, y in zip(cols, yc):
-                        hit = np.flatnonzero((lat[:-1] <= y) & (y < lat[1:]))
-                        cut_n[hit, i] = True
-    return cut_e, cut_n
 
 
 def _nearest_water(water, grid, lon0, lat0, max_cells=3):
@@ -272,8 +164,8 @@ def _earth_basins(water, grid):
             "basins: 'earth' needs a global grid whose longitudes close the circle, found "
             f"{grid!r}. Fix: pass a global field, or give your own basins as masks or polygons."
         )
-    cut_e, cut_n = _line_cuts(grid, EARTH_DIVIDING_LINES.values())
-    coast_e, _ = _line_cuts(grid, [EARTH_DIVIDING_LINES[k] for k in EARTH_COASTAL_LINES])
+    cut_e, cut_n = line_cuts(grid, EARTH_DIVIDING_LINES.values())
+    coast_e, _ = line_cuts(grid, [EARTH_DIVIDING_LINES[k] for k in EARTH_COASTAL_LINES])
     labels, _ = label_cells(water, periodic=True, cut_east=cut_e, cut_north=cut_n)
     names = list(EARTH_BASIN_SEEDS)
     comp_of = {}
@@ -337,6 +229,8 @@ def _mask_on_grid(da, ref, layout, argname):
         )
     for name, period in ((lat_name, None), (lon_name, 360.0)):
         a, b = np.asarray(da[name].values, float), np.asarray(ref[name].values, float)
+        if np.array_equal(a, b):
+            continue
         take = matching_positions(a, b, period)
         if take is None:
             raise GridError(
@@ -418,25 +312,158 @@ def _user_basins(basins, water, grid, layout, ref):
 def _islands_join_basins(basin, cls, land_labels, periodic):
     """Give a small island the basin of the water around it when that water is one basin."""
     small = cls == SMALL_ISLAND
-    unassigned = small & (basin < 0)
-    if not unassigned.any():
+    if not (small & (basin < 0)).any():
         return basin
+    pairs = []
+    for axis, k in ((0, 1), (0, -1), (1, 1), (1, -1)):
+        nb_basin = np.roll(basin, k, axis=axis)
+        nb_ocean = np.roll(cls == OCEAN, k, axis=axis)
+        if axis == 0:
+            nb_ocean[0 if k == 1 else -1] = False
+        elif not periodic:
+            nb_ocean[:, 0 if k == 1 else -1] = False
+        ok = small & nb_ocean
+        pairs.append(np.column_stack([land_labels[ok], nb_basin[ok]]))
+    p = np.concatenate(pairs)
+    p = p[p[:, 1] >= 0]  # ocean in no basin does not count
+    n = int(land_labels.max()) + 1
+    nb = int(max(basin.max(), 0)) + 1
+    key = np.unique(p[:, 0] * nb + p[:, 1])
+    p = np.column_stack([key // nb, key % nb])
+    n_basins_round = np.bincount(p[:, 0], minlength=n)
+    only = np.full(n, -1, dtype=np.int64)
+    single = p[n_basins_round[p[:, 0]] == 1]
+    only[single[:, 0]] = single[:, 1]
+    take = small & (basin < 0) & (only[np.maximum(land_labels, 0)] >= 0)
     out = basin.copy()
-    for lab in np.unique(land_labels[unassigned]):
-        cells = land_labels == lab
-        nb = np.zeros_like(cells)
-        for axis, k in ((0, 1), (0, -1), (1, 1), (1, -1)):
-            sh = np.roll(cells, k, axis=axis)
-            if axis == 0:
-                sh[0 if k == 1 else -1] = False
-            elif not periodic:
-                sh[:, 0 if k == 1 else -1] = False
-            nb |= sh
-        around = np.unique(basin[nb & ~cells & (cls == OCEAN)])
-        around = around[around >= 0]
-        if around.size == 1:
-            out[cells] = around[0]
+    out[take] = only[land_labels[take]]
     return out
+
+
+def _auto_basins(water, grid, cls, land_labels, *, min_area):
+    """Connected ocean regions, split where two oceans meet south (or north) of a continent.
+
+    The rows of water are cut into row groups (runs joined across large islands); groups in
+    neighbouring rows that share a cell face are linked. Where one group (a *junction*, e.g.
+    the row just south of a continent's tip) links to two or more groups on the same side
+    that are not otherwise connected, and at least two of those branches are larger than
+    :data:`SEPARATE_OCEAN_AREA`, each large branch becomes a basin of its own; smaller
+    branches (a gulf behind a peninsula) stay with the junction and are treated as marginal
+    seas row by row.
+    """
+    ny, nx = water.shape
+    G = find_groups(water, cls, land_labels, grid.dx, periodic=grid.periodic)
+    n_nodes = G.row.size
+    if n_nodes == 0:
+        return np.full(water.shape, -1, dtype=np.int64), []
+    node_of = np.full(ny * nx, -1, dtype=np.int64)
+    cells, _ = G.run_cells(nx)
+    node_of[cells] = np.repeat(G.run_group, G.run_k1 - G.run_k0)
+    node_of = node_of.reshape(ny, nx)
+    node_area = np.bincount(node_of[water], weights=grid.cell_area[water] / 1e6,
+                            minlength=n_nodes)
+    a, b = node_of[:-1], node_of[1:]
+    link = (a >= 0) & (b >= 0)
+    # Neighbouring columns mostly repeat a pair: drop repeats before the (1-D) unique.
+    key = np.where(link, a * n_nodes + b, -1)
+    rep = np.zeros_like(link)
+    rep[:, 1:] = key[:, 1:] == key[:, :-1]
+    key = np.unique(key[link & ~rep])
+    pairs = np.column_stack([key // n_nodes, key % n_nodes]).reshape(-1, 2)
+    # Candidate junctions: nodes with two or more neighbours on one side.
+    n_up = np.bincount(pairs[:, 0], minlength=n_nodes)
+    n_down = np.bincount(pairs[:, 1], minlength=n_nodes)
+    cut = set()
+    total = float(node_area.sum())
+    for p in np.flatnonzero((n_up >= 2) | (n_down >= 2)):
+        for side, other in ((0, 1), (1, 0)):
+            nbrs = pairs[pairs[:, side] == p, other]
+            if nbrs.size < 2:
+                continue
+            keep = (pairs[:, 0] != p) & (pairs[:, 1] != p)
+            comp = _components(n_nodes, pairs[keep])
+            area = np.bincount(comp, weights=node_area)
+            branches = {int(comp[q]) for q in nbrs}
+            big = {c for c in branches if area[c] >= SEPARATE_OCEAN_AREA}
+            if len(branches) >= 2 and len(big) >= 2 and total >= 2 * SEPARATE_OCEAN_AREA:
+                cut.update((min(p, q), max(p, q)) for q in nbrs if int(comp[q]) in big)
+    keep = np.array([(min(p, q), max(p, q)) not in cut for p, q in pairs], dtype=bool)
+    comp = _components(n_nodes, pairs[keep] if pairs.size else pairs)
+    labels = np.where(node_of >= 0, comp[np.maximum(node_of, 0)], -1)
+    n = int(comp.max()) + 1
+    area = np.bincount(labels[water], weights=grid.cell_area[water] / 1e6, minlength=n)
+    keep_b = np.flatnonzero(area >= min_area)
+    keep_b = keep_b[np.argsort(-area[keep_b], kind="stable")]
+    remap = np.full(n, -1, dtype=np.int64)
+    remap[keep_b] = np.arange(keep_b.size)
+    out = np.where(labels >= 0, remap[np.maximum(labels, 0)], -1)
+    return out, [f"basin_{k}" for k in range(keep_b.size)]
+
+
+def _components(n, pairs):
+    graph = coo_matrix(
+        (np.ones(len(pairs), dtype=np.int8), (pairs[:, 0], pairs[:, 1])), shape=(n, n)
+    )
+    return connected_components(graph, directed=False)[1]
+
+
+def _polygon_cells(grid, verts):
+    """Cells whose centres lie inside a (lon, lat) polygon, checked only in its bounding box."""
+    from matplotlib.path import Path
+
+    v = np.asarray(verts, dtype=np.float64)
+    path = Path(v)
+    lat, lon = grid.lat, grid.lon
+    rows = np.flatnonzero((lat >= v[:, 1].min()) & (lat <= v[:, 1].max()))
+    inside = np.zeros(grid.shape, dtype=bool)
+    if rows.size == 0:
+        return inside
+    lo, hi = v[:, 0].min(), v[:, 0].max()
+    for shift in (-720.0, -360.0, 0.0, 360.0, 720.0):
+        cols = np.flatnonzero((lon - shift >= lo) & (lon - shift <= hi))
+        if cols.size == 0:
+            continue
+        lo2, la2 = np.meshgrid(lon[cols] - shift, lat[rows])
+        hit = path.contains_points(np.column_stack([lo2.ravel(), la2.ravel()]))
+        inside[np.ix_(rows, cols)] |= hit.reshape(lo2.shape)
+    return inside
+
+
+def earth_seas(bid, names, grid, *, seas=None):
+    """Marginal seas and sub-basins of the Earth basins: sea number per cell and policies.
+
+    Returns ``sea_id`` (ny, nx; -1 outside every sea), the sea names, ``excluded`` and
+    ``counted`` (ny, nx) masks. ``seas`` maps sea names to ``"counted"`` or ``"excluded"``,
+    overriding :data:`~sverdrup_kit.geometry.earth.EARTH_SEAS`.
+    """
+    seas = dict(seas or {})
+    unknown = [k for k in seas if k not in EARTH_SEAS]
+    if unknown:
+        raise KeyError(
+            f"seas: expected names from {sorted(EARTH_SEAS)}, found {unknown}. Fix: e.g. "
+            "seas={'caribbean': 'counted'}."
+        )
+    for k, v in seas.items():
+        if v not in (COUNTED, EXCLUDED):
+            raise ValueError(
+                f"seas[{k!r}]: expected 'counted' or 'excluded', found {v!r}. "
+                "Fix: seas={'caribbean': 'counted'}."
+            )
+    sea_id = np.full(grid.shape, -1, dtype=np.int64)
+    excluded = np.zeros(grid.shape, dtype=bool)
+    counted = np.zeros(grid.shape, dtype=bool)
+    sea_names = list(EARTH_SEAS)
+    for k, (name, spec) in enumerate(EARTH_SEAS.items()):
+        if spec["basin"] not in names:
+            continue
+        b = names.index(spec["basin"])
+        m = _polygon_cells(grid, spec["polygon"]) & (bid == b) & (sea_id < 0)
+        sea_id[m] = k
+        if seas.get(name, spec["policy"]) == EXCLUDED:
+            excluded |= m
+        else:
+            counted |= m
+    return sea_id, sea_names, excluded, counted
 
 
 def assign_basins(basins, water, grid, layout, ref, cls, land_labels, *, min_area):
@@ -464,303 +491,6 @@ def assign_basins(basins, water, grid, layout, ref, cls, land_labels, *, min_are
             "polygons overlap the ocean (longitudes in degrees_east, polygons as (lon, lat))."
         )
     return bid, names, coast_e
-
-
-# --------------------------------------------------------------------------------------------
-# Rows: runs of ocean, eastern and western coasts, marginal seas
-# --------------------------------------------------------------------------------------------
-
-#: row_status values and their meanings (CF flag_values / flag_meanings).
-ROW_STATUS = {
-    0: ("valid", "interior transport computed"),
-    1: ("equatorial_band", "within the equatorial band, where V = curl/(rho0 beta) stays "
-        "finite but the Ekman and geostrophic parts (both as 1/f) lose their meaning and "
-        "equatorial dynamics (undercurrents, nonlinearity, friction) break the Sverdrup "
-        "balance"),
-    2: ("no_eastern_coast", "the basin's ocean in this row has no eastern coast: it wraps all "
-        "the way round (a circumpolar band), or its eastern end is open to another basin or "
-        "the edge of the grid"),
-    3: ("too_narrow", "the basin interior in this row is narrower than min_width"),
-    4: ("no_ocean", "the basin has no ocean in this row"),
-    5: ("no_western_coast", "the basin's ocean in this row ends in the west on open water "
-        "(another basin or the edge of the grid), so no western boundary current closes it"),
-}
-
-#: integration_class values and meanings.
-CELL_CLASS = {
-    0: ("not_integrated", "land, ocean outside every basin, or a row left empty"),
-    1: ("interior", "counted in the basin's interior transport"),
-    2: ("marginal_sea", "a sea cut off from the open basin in this row by a continent; it has "
-        "its own streamfunction from its own eastern coast but is not counted"),
-    3: ("uncounted_row", "streamfunction from the eastern coast, but the row has no western "
-        "coast or is too narrow, so no interior transport is reported"),
-}
-
-
-@dataclass
-class RowPlan:
-    """The westward integral of one call, worked out from grid and mask alone.
-
-    ``cells``/``run_starts``: the runs to integrate, each from its eastern cell westward (flat
-    indices j * nx + i), in ascending row order. ``group_runs``/``group_starts``/
-    ``group_slot``: which runs add up to the interior transport of (basin, row) slot
-    ``b * ny + j``.
-    """
-
-    cells: np.ndarray
-    run_starts: np.ndarray
-    group_runs: np.ndarray
-    group_starts: np.ndarray
-    group_slot: np.ndarray
-    row_status: np.ndarray
-    east_lon: np.ndarray
-    west_lon: np.ndarray
-    cell_class: np.ndarray
-
-
-def _runs(m, periodic):
-    """Runs of True in a row: (list of (west, length), circular)."""
-    nx = m.size
-    if not m.any():
-        return [], False
-    if m.all():
-        return [(0, nx)], periodic
-    shift = int(np.flatnonzero(~m)[0]) if periodic else 0
-    mm = np.roll(m, -shift)
-    d = np.diff(np.concatenate([[False], mm, [False]]).astype(np.int8))
-    starts = np.flatnonzero(d == 1)
-    ends = np.flatnonzero(d == -1)
-    return [(int((s + shift) % nx), int(e - s)) for s, e in zip(starts, ends)], False
-
-
-@dataclass
-class RowGroup:
-    """Runs of one row joined across large islands only, listed from east to west."""
-
-    runs: list
-    circular: bool
-    east: tuple  # (kind, land body): kind 'edge', 'water' or a land class
-    west: tuple
-
-    def width(self, dx_row, nx):
-        return sum(float(dx_row[(w + np.arange(n)) % nx].sum()) for w, n in self.runs)
-
-
-def row_groups(m, cls_row, land_row, periodic, coast_row=None):
-    """Split the True cells of one row into groups of runs joined across large islands.
-
-    Two neighbouring runs are joined when the cells between them are all land of one large
-    island. A group that closes the circle (a periodic row of water and large islands only) is
-    ``circular`` and has no ends. ``coast_row[i]`` True makes the link from i to i+1 a coast.
-    """
-    nx = m.size
-    runs, circular = _runs(m, periodic)
-    if not runs:
-        return []
-    if circular:
-        return [RowGroup(runs, True, ("water", -1), ("water", -1))]
-
-    def kind(i):
-        if i < 0 or i >= nx:
-            if not periodic:
-                return ("edge", -1)
-            i %= nx
-        c = int(cls_row[i])
-        if c == OCEAN or c == SMALL_ISLAND:
-            return ("water", -1)
-        return (c, int(land_row[i]))
-
-    runs.sort(key=lambda r: r[0])
-    nr = len(runs)
-    joined_west = []  # run k joined to run k-1 (its western neighbour)
-    for k, (w, n) in enumerate(runs):
-        if k == 0 and not periodic:
-            joined_west.append(False)
-            continue
-        pw, pn = runs[k - 1]
-        stop = w if w >= pw + pn else w + nx
-        kinds = {kind(i % nx) for i in range(pw + pn, stop)}
-        joined_west.append(len(kinds) == 1 and next(iter(kinds))[0] == LARGE_ISLAND)
-    if periodic and nr > 1 and all(joined_west):
-        return [RowGroup(runs[::-1], True, ("water", -1), ("water", -1))]
-    if periodic and nr == 1 and joined_west[0]:
-        return [RowGroup(runs, True, ("water", -1), ("water", -1))]
-    # Start from a run not joined to its western neighbour and walk east.
-    start = next(k for k in range(nr) if not joined_west[k])
-    groups, cur = [], []
-    for step in range(nr):
-        k = (start + step) % nr
-        if cur and not joined_west[k]:
-            groups.append(cur)
-            cur = []
-        cur.append(runs[k])
-    groups.append(cur)
-    def end(i, link):
-        if coast_row is not None and coast_row[link % nx]:
-            return (CONTINENT, -1)
-        return kind(i)
-
-    out = []
-    for g in groups:
-        (ww, _), (ew, en) = g[0], g[-1]
-        out.append(RowGroup(g[::-1], False, end(ew + en, ew + en - 1), end(ww - 1, ww - 1)))
-    return out
-
-
-def _components(n, pairs):
-    graph = coo_matrix(
-        (np.ones(len(pairs), dtype=np.int8), (pairs[:, 0], pairs[:, 1])), shape=(n, n)
-    )
-    return connected_components(graph, directed=False)[1]
-
-
-def _auto_basins(water, grid, cls, land_labels, *, min_area):
-    """Connected ocean regions, split where two oceans meet south (or north) of a continent.
-
-    The rows of water are cut into row groups (runs joined across large islands); groups in
-    neighbouring rows that share a cell face are linked. Where one group (a *junction*, e.g.
-    the row just south of a continent's tip) links to two or more groups on the same side
-    that are not otherwise connected, and at least two of those branches are larger than
-    :data:`SEPARATE_OCEAN_AREA`, each large branch becomes a basin of its own; smaller
-    branches (a gulf behind a peninsula) stay with the junction and are treated as marginal
-    seas row by row.
-    """
-    ny, nx = water.shape
-    node_of = np.full((ny, nx), -1, dtype=np.int64)
-    n_nodes = 0
-    for j in range(ny):
-        for g in row_groups(water[j], cls[j], land_labels[j], grid.periodic):
-            for w, n in g.runs:
-                node_of[j, (w + np.arange(n)) % nx] = n_nodes
-            n_nodes += 1
-    if n_nodes == 0:
-        return np.full(water.shape, -1, dtype=np.int64), []
-    node_area = np.bincount(node_of[water], weights=grid.cell_area[water] / 1e6,
-                            minlength=n_nodes)
-    a, b = node_of[:-1], node_of[1:]
-    link = (a >= 0) & (b >= 0)
-    pairs = np.unique(np.column_stack([a[link], b[link]]), axis=0).reshape(-1, 2)
-    up = [[] for _ in range(n_nodes)]
-    down = [[] for _ in range(n_nodes)]
-    for p, q in pairs:
-        up[p].append(q)
-        down[q].append(p)
-    cut = set()
-    for p in range(n_nodes):
-        for nbrs in (up[p], down[p]):
-            if len(nbrs) < 2:
-                continue
-            keep = (pairs[:, 0] != p) & (pairs[:, 1] != p)
-            comp = _components(n_nodes, pairs[keep])
-            area = np.bincount(comp, weights=node_area)
-            branches = {int(comp[q]) for q in nbrs}
-            big = {c for c in branches if area[c] >= SEPARATE_OCEAN_AREA}
-            if len(branches) >= 2 and len(big) >= 2:
-                cut.update((min(p, q), max(p, q)) for q in nbrs if int(comp[q]) in big)
-    keep = np.array([(min(p, q), max(p, q)) not in cut for p, q in pairs], dtype=bool)
-    comp = _components(n_nodes, pairs[keep] if pairs.size else pairs)
-    labels = np.where(node_of >= 0, comp[np.maximum(node_of, 0)], -1)
-    n = int(comp.max()) + 1
-    area = np.bincount(labels[water], weights=grid.cell_area[water] / 1e6, minlength=n)
-    keep_b = np.flatnonzero(area >= min_area)
-    keep_b = keep_b[np.argsort(-area[keep_b], kind="stable")]
-    out = np.full(water.shape, -1, dtype=np.int64)
-    for k, lab in enumerate(keep_b):
-        out[labels == lab] = k
-    return out, [f"basin_{k}" for k in range(keep_b.size)]
-
-
-def plan_rows(bid, cls, land_labels, grid, *, n_basins, equatorial, min_width_km, coast_e=None):
-    """Work out runs, groups, row status and coasts for every basin row."""
-    ny, nx = bid.shape
-    periodic = grid.periodic
-    edges = grid.lon_edges
-    cells, run_starts = [], []
-    g_runs, g_starts, g_slot = [], [], []
-    status = np.full((n_basins, ny), 4, dtype=np.int8)
-    east_lon = np.full((n_basins, ny), np.nan)
-    west_lon = np.full((n_basins, ny), np.nan)
-    cell_class = np.zeros((ny, nx), dtype=np.int8)
-    n_cells = 0
-
-    def add_run(j, w, length):
-        nonlocal n_cells
-        idx = (w + length - 1 - np.arange(length)) % nx
-        run_starts.append(n_cells)
-        cells.append(j * nx + idx)
-        n_cells += length
-        return len(run_starts) - 1
-
-    for b in range(n_basins):
-        for j in range(ny):
-            groups = row_groups(bid[j] == b, cls[j], land_labels[j], periodic,
-                                None if coast_e is None else coast_e[j])
-            if not groups:
-                continue
-            if equatorial[j]:
-                status[b, j] = 1
-                continue
-            widths = [g.width(grid.dx[j], nx) for g in groups]
-            main = groups[int(np.argmax(widths))]
-            if main.circular or main.east[0] in ("edge", "water"):
-                status[b, j] = 2
-                continue
-            if main.west[0] in ("edge", "water"):
-                st = 5
-            elif max(widths) < min_width_km * 1e3:
-                st = 3
-            else:
-                st = 0
-            status[b, j] = st
-            (ew, en), (ww, _) = main.runs[0], main.runs[-1]
-            east_lon[b, j] = _face(edges, ew + en, nx, periodic)
-            west_lon[b, j] = _face(edges, ww, nx, periodic)
-            members = []
-            for w, n in main.runs:
-                members.append(add_run(j, w, n))
-                cell_class[j, (w + np.arange(n)) % nx] = 1 if st == 0 else 3
-            if st == 0:
-                g_starts.append(len(g_runs))
-                g_runs.extend(members)
-                g_slot.append(b * ny + j)
-            for g in groups:
-                if g is main or g.circular or g.east[0] in ("edge", "water"):
-                    continue
-                for w, n in g.runs:
-                    add_run(j, w, n)
-                    cell_class[j, (w + np.arange(n)) % nx] = 2
-    # Runs in ascending row order, so that a kernel can scan each row while it is in cache.
-    run_row = _ints([c[0] // nx for c in cells])
-    order = np.argsort(run_row, kind="stable")
-    new_index = np.empty(order.size, dtype=np.int64)
-    new_index[order] = np.arange(order.size)
-    cells = [cells[k] for k in order]
-    lengths = _ints([c.size for c in cells])
-    return RowPlan(
-        cells=np.concatenate(cells).astype(np.int64) if cells else _ints([]),
-        run_starts=np.concatenate([[0], np.cumsum(lengths)[:-1]]).astype(np.int64)
-        if cells else _ints([]),
-        group_runs=new_index[_ints(g_runs)] if g_runs else _ints([]),
-        group_starts=_ints(g_starts),
-        group_slot=_ints(g_slot),
-        row_status=status,
-        east_lon=east_lon,
-        west_lon=west_lon,
-        cell_class=cell_class,
-    )
-
-
-def _ints(x):
-    return np.asarray(x, dtype=np.int64)
-
-
-def _face(edges, i, nx, periodic):
-    """Longitude of the western face of column i (i may run past the last column)."""
-    if 0 <= i <= nx:
-        return float(edges[i])
-    if periodic:
-        return float(edges[i % nx] + 360.0 * (i // nx))
-    return float(edges[min(max(i, 0), nx)])
 
 
 # --------------------------------------------------------------------------------------------

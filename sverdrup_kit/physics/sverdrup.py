@@ -14,9 +14,9 @@ import numpy as np
 import xarray as xr
 
 from .. import constants
-from .._apply import apply_grid_kernel, whole_fields
+from .._apply import _bare, apply_grid_kernel, whole_fields
 from .._compiled.dispatch import fill_from_neighbours, westward_scan
-from .._compiled.scan import sign_changes, sum_groups
+from .._compiled.scan import coverage, gyre_boundaries, sum_groups
 from ..geometry.basins import (
     CELL_CLASS,
     CONTINENT_MIN_AREA,
@@ -24,14 +24,13 @@ from ..geometry.basins import (
     MIN_WIDTH,
     OCEAN,
     ROW_STATUS,
-    SMALL_ISLAND,
     _as_bool,
     _mask_on_grid,
-    assign_basins,
     basin_id_attrs,
-    classify_land,
-    plan_rows,
 )
+from ..geometry.integral import SverdrupGeometry, build_geometry, relief_depth
+from ..geometry.land import LAND_CLASSES
+from ..geometry.rows import MOSTLY_FILLED, VALID
 from ..geometry.coords import (
     GridLayout,
     check_same_grid,
@@ -49,26 +48,57 @@ __all__ = ["sverdrup_transport"]
 
 SV_UNITS = "1e6 m3 s-1"
 
+#: Default size (1e6 m3 s-1) a transport must reach on both sides of a sign change for it to
+#: count as a gyre boundary: about 10% of a 20 Sv subtropical gyre, the uncertainty of an
+#: effective drag coefficient on monthly winds (Trenberth, Large & Olson 1989, J. Climate 2,
+#: 1507) -- smaller wiggles about zero are noise of the stress, not boundaries between gyres.
+GYRE_THRESHOLD_SV = 2.0
+
+#: Rows whose counted cells were observed less often than this are ``mostly_filled``.
+MIN_OBSERVED_FRACTION = 0.5
+
 
 def _fill_kernel(tx, ty, *, target, keep_missing, periodic):
     """Fill stress gaps inside ``target`` (both components missing where either is)."""
     tx = np.asarray(tx, dtype=np.float64)
     ty = np.asarray(ty, dtype=np.float64)
-    missing = np.isnan(tx) | np.isnan(ty)
-    tx = np.where(missing, np.nan, tx)
-    ty = np.where(missing, np.nan, ty)
+    nx_, ny_ = np.isnan(tx), np.isnan(ty)
+    if not np.array_equal(nx_, ny_):
+        missing = nx_ | ny_
+        tx = np.where(missing, np.nan, tx)
+        ty = np.where(missing, np.nan, ty)
+    else:
+        missing = nx_
     fx = fill_from_neighbours(tx, target=target, periodic=periodic)
     fy = fill_from_neighbours(ty, target=target, periodic=periodic)
+    if keep_missing is None:
+        return fx, fy
     stay = missing & keep_missing
     return np.where(stay, np.nan, fx), np.where(stay, np.nan, fy)
 
 
-def _scan_kernel(v, *, dx, cells, run_starts, group_runs, group_starts, group_slot, n_basins):
-    psi, totals = westward_scan(v, dx, cells, run_starts)
+def _integral_kernel(curl, tx, ty, *, pole_factor, inv_rb, dx, plan, n_basins):
+    """Curl with pole rows masked, V, the westward scan, and each row's observed coverage."""
+    curl = np.asarray(curl, dtype=np.float64) * pole_factor[:, None]
+    v = curl * inv_rb[:, None]
+    psi, totals = westward_scan(v, dx, plan.cells, plan.run_starts)
     ny = v.shape[-2]
-    t = sum_groups(totals, group_runs, group_starts, group_slot, n_basins * ny)
+    t = sum_groups(totals, plan.group_runs, plan.group_starts, plan.group_slot, n_basins * ny)
     t = t.reshape(t.shape[:-1] + (n_basins, ny))
-    return psi / constants.SVERDRUP_IN_M3_S, t / constants.SVERDRUP_IN_M3_S
+    obs = coverage(tx, ty, plan.count_cells, plan.count_starts, plan.count_slot, n_basins * ny)
+    obs = obs.reshape(obs.shape[:-1] + (n_basins, ny))
+    sv = constants.SVERDRUP_IN_M3_S
+    # psi and t are new arrays of the scan: scaled in place, one pass fewer over memory.
+    psi /= sv
+    t /= sv
+    return curl, v, psi, t, obs
+
+
+def _boundaries_kernel(t, valid, *, lat, max_gyre_boundaries, threshold):
+    """Gyre boundaries above ``threshold`` and every raw sign change."""
+    kw = dict(lat=lat, max_gyre_boundaries=max_gyre_boundaries)
+    return (*gyre_boundaries(t, valid, threshold=threshold, **kw),
+            *gyre_boundaries(t, valid, threshold=0.0, **kw))
 
 
 def _check_positive(value, name, *, allow_zero=False, fix=""):
@@ -102,6 +132,13 @@ def sverdrup_transport(
     min_width_km: float = MIN_WIDTH,
     fill_gaps: bool = True,
     max_gyre_boundaries: int = 8,
+    gyre_threshold_sv: float = GYRE_THRESHOLD_SV,
+    land_connectivity: int = 4,
+    land_classes=None,
+    seas=None,
+    relief=None,
+    shelf_depth_m: float = 1000.0,
+    geometry: SverdrupGeometry | None = None,
     radius: float = constants.EARTH_RADIUS,
     omega: float = constants.OMEGA,
 ) -> xr.Dataset:
@@ -119,7 +156,11 @@ def sverdrup_transport(
         dimensions; for dask-backed stress that needs one pass over the data at call time, so
         pass ``ocean_mask`` to keep the call fully lazy.
     basins : None, "earth", xarray.DataArray or dict, optional
-        ``None``: connected ocean regions of the mask (faces only, longitude wrapping on a
+        ``None``: on a global grid whose mask shows the Earth's continents
+        (:func:`~sverdrup_kit.geometry.earth.looks_like_earth`), the Earth basins as for
+        ``"earth"``, said in the attribute ``basins`` and once per session as an
+        :class:`~sverdrup_kit.geometry.integral.EarthBasinsNotice`; otherwise connected ocean
+        regions of the mask (faces only, longitude wrapping on a
         global grid), named ``basin_0``, ``basin_1``, ... by decreasing area; water bodies
         smaller than ``island_min_area_km2`` are left out. Where two oceans larger than
         :data:`~sverdrup_kit.geometry.basins.SEPARATE_OCEAN_AREA` (1e7 km2) meet beyond a continent's
@@ -168,6 +209,31 @@ def sverdrup_transport(
         the curl. With ``False`` such gaps stay missing and spoil the rows they lie on.
     max_gyre_boundaries : int, optional
         Length of the ``gyre_boundary`` dimension of ``gyre_boundary_lat``.
+    gyre_threshold_sv : float, optional
+        1e6 m3 s-1. A sign change of the interior transport is a gyre boundary only where the
+        transport reaches this size on both sides (valid rows only); default
+        :data:`GYRE_THRESHOLD_SV` (2 Sv, about 10% of a subtropical gyre: the uncertainty of
+        an effective drag coefficient, Trenberth, Large & Olson 1989). Every raw sign change
+        is kept in ``raw_gyre_boundary_lat``.
+    land_connectivity : {4, 8}, optional
+        Land cells join through faces only (4, default) or also through corners (8).
+    land_classes : dict, optional
+        Class of chosen land bodies by name (Earth) or by a (lon, lat) point inside them:
+        ``"small_island"``, ``"large_island"`` or ``"continent"``; see
+        :func:`~sverdrup_kit.geometry.land.island_table`.
+    seas : dict, optional
+        Earth basins only: sea name -> ``"counted"`` or ``"excluded"``, overriding
+        :data:`~sverdrup_kit.geometry.earth.EARTH_SEAS` (e.g. ``{"caribbean": "counted"}``).
+    relief : xarray.DataArray (lat, lon), optional
+        Surface height in m (negative below sea level) on the stress grid. Rows whose counted
+        ocean is mostly shallower than ``shelf_depth_m`` get the caution ``over_shelf``.
+    shelf_depth_m : float, optional
+        m. Default 1000: deeper than the Antarctic and Arctic shelves (400-800 m; common
+        practice) and shallower than the open ocean.
+    geometry : SverdrupGeometry, optional
+        From :func:`~sverdrup_kit.geometry.integral.sverdrup_geometry` on this grid; skips
+        the geometry step (the options it was built with apply). Without it the geometry is
+        built, or taken from an in-memory cache keyed on grid, mask and options.
     radius, omega : float, optional
         Earth radius (m) and rotation rate (rad s-1).
 
@@ -184,9 +250,19 @@ def sverdrup_transport(
         - ``gyre_boundary_lat`` (..., basin, gyre_boundary) and ``gyre_boundary_count``
           (..., basin): latitudes where the interior transport changes sign;
         - ``basin_id`` (lat, lon), ``integration_class`` (lat, lon), ``row_status``
-          (basin, lat), ``eastern_coast_lon`` and ``western_coast_lon`` (basin, lat).
+          (basin, lat), ``eastern_coast_lon`` and ``western_coast_lon`` (basin, lat);
+        - ``raw_gyre_boundary_lat`` and ``raw_gyre_boundary_count``: every sign change;
+        - ``observed_fraction`` (..., basin, lat): share of the counted cells whose stress
+          was observed rather than filled;
+        - ``land_class`` (lat, lon): 0 ocean, 1 small island, 2 large island, 3 continent;
+        - with the Earth basins, ``crossed_seas`` and ``ending_seas`` (basin, lat), str: the
+          named seas the counted ocean of a row crosses, and the excluded seas whose edge
+          ends it.
 
         Rows left empty are NaN, with the reason in ``row_status`` (CF flags) and in the attrs.
+        ``row_status`` 0 is valid; 8 (poleward of the circumpolar band), 9 (over a shelf) and
+        10 (mostly filled: observed fraction averaged over the leading dimensions below 0.5)
+        are cautions whose transport is given.
 
     Notes
     -----
@@ -276,62 +352,88 @@ def sverdrup_transport(
                        np.arange(lay.lon.size), lay.periodic)
     grid = SphericalGrid(lay.lat, lay.lon, lay.periodic, radius, omega, ident)
 
-    # Geometry: once per call, from grid and mask alone.
-    ocean = _ocean_from(taux, tauy, ocean_mask, lay)
-    cls, land_labels = classify_land(
-        ocean, grid, island_min_area_km2=island_min_area_km2, continent_min_area_km2=continent_min_area_km2
-    )
-    water = cls <= SMALL_ISLAND
-    bid, names, coast_e = assign_basins(
-        basins, water, grid, lay, taux, cls, land_labels, min_area=island_min_area_km2
-    )
+    # Geometry: from grid, mask and options alone; cached.
+    mask_from_geometry = geometry is not None
+    if geometry is None:
+        ocean = _ocean_from(taux, tauy, ocean_mask, lay)
+        depth = relief_depth(relief, taux, lay) if relief is not None else None
+        geometry = build_geometry(
+            ocean, grid, basins=basins, layout=lay, ref=taux,
+            island_min_area_km2=island_min_area_km2,
+            continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km,
+            equatorial_half_width=equatorial_half_width, land_connectivity=land_connectivity,
+            land_classes=land_classes, seas=seas, depth=depth, shelf_depth_m=shelf_depth_m,
+        )
+    else:
+        _check_geometry(geometry, grid)
+    # The geometry's grid keeps its cell widths and weights from call to call.
+    g_lay = geometry.grid.layout
+    if g_lay is not None and (g_lay.lat_name, g_lay.lon_name) == (lat, lon):
+        grid = geometry.grid
+    cls, bid, names, plan = geometry.land.cls, geometry.basin_id, geometry.names, geometry.plan
+    water = cls <= 1
     nb = len(names)
-    band = grid.equatorial_mask(equatorial_half_width) if equatorial_half_width > 0 else np.zeros(
-        grid.lat.size, dtype=bool)
-    plan = plan_rows(bid, cls, land_labels, grid, n_basins=nb, equatorial=band,
-                     min_width_km=min_width_km, coast_e=coast_e)
+    band = geometry.equatorial
+    pole = np.zeros(grid.lat.size, dtype=bool)
+    pole[0] = grid.lat_edges[0] <= -90.0 + 1e-9
+    pole[-1] = grid.lat_edges[-1] >= 90.0 - 1e-9
 
     # Per time step: fill, curl, V, scan.
-    keep_missing = (cls == OCEAN) if not fill_gaps else np.zeros_like(water)
+    keep_missing = (cls == OCEAN) if not fill_gaps else None
     fx, fy = apply_grid_kernel(
         _fill_kernel, tx, ty, dims=(lat, lon), n_out=2,
         kwargs=dict(target=water, keep_missing=keep_missing, periodic=grid.periodic),
     )
     curl = curl_on_sphere(fx, fy, grid=grid, names=("taux", "tauy"))
-    beta = xr.DataArray(grid.beta, dims=(lat,), coords={lat: tx[lat]})
-    not_band = xr.DataArray(~band, dims=(lat,), coords={lat: tx[lat]})
-    v = (curl / (rho0 * beta)).where(not_band)
-    psi, transport = xr.apply_ufunc(
-        _scan_kernel,
-        whole_fields(v, (lat, lon)),
-        input_core_dims=[[lat, lon]],
-        output_core_dims=[[lat, lon], ["basin", lat]],
+    # Cells touching the pole: 1/cos(phi) makes their curl spikes, not data. V is also
+    # missing in the equatorial band. Both, the scan and the coverage of each row by observed
+    # stress run in one kernel, one pass per field.
+    pole_factor = np.where(pole, np.nan, 1.0)
+    inv_rb = np.where(band | pole, np.nan, 1.0 / (rho0 * grid.beta))
+    curl, v, psi, transport, observed = xr.apply_ufunc(
+        _integral_kernel,
+        whole_fields(curl, (lat, lon)), whole_fields(tx, (lat, lon)),
+        whole_fields(ty, (lat, lon)),
+        input_core_dims=[[lat, lon]] * 3,
+        output_core_dims=[[lat, lon], [lat, lon], [lat, lon], ["basin", lat], ["basin", lat]],
         dask="parallelized",
-        output_dtypes=[np.float64, np.float64],
+        output_dtypes=[np.float64] * 5,
         dask_gufunc_kwargs={"output_sizes": {"basin": nb}},
-        kwargs=dict(dx=grid.dx, cells=plan.cells, run_starts=plan.run_starts,
-                    group_runs=plan.group_runs, group_starts=plan.group_starts,
-                    group_slot=plan.group_slot, n_basins=nb),
+        kwargs=dict(pole_factor=pole_factor, inv_rb=inv_rb, dx=grid.dx, plan=plan,
+                    n_basins=nb),
+        # Keep the coordinates' attributes; the variables get their own in _assemble.
+        keep_attrs=True,
     )
-    order = [d for d in v.dims]
-    psi = psi.transpose(*order)
+    order = [d for d in tx.dims]
+    curl, v, psi, transport, observed = (_bare(x) for x in (curl, v, psi, transport, observed))
+    curl, v, psi = (x.transpose(*order) for x in (curl, v, psi))
     lead = [d for d in order if d not in (lat, lon)]
     transport = transport.transpose(*lead, "basin", lat)
-    crossings, count = xr.apply_ufunc(
-        sign_changes,
-        transport,
-        input_core_dims=[["basin", lat]],
-        output_core_dims=[["basin", "gyre_boundary"], ["basin"]],
+    observed = observed.transpose(*lead, "basin", lat)
+    static = xr.DataArray(plan.row_status, dims=("basin", lat), coords={lat: tx[lat]})
+    mean_obs = observed.mean(lead) if lead else observed
+    status = xr.where((static == VALID) & (mean_obs < MIN_OBSERVED_FRACTION),
+                      np.int8(MOSTLY_FILLED), static).astype(np.int8)
+    valid = status == VALID
+
+    crossings, count, raw_crossings, raw_count = xr.apply_ufunc(
+        _boundaries_kernel, transport, valid,
+        input_core_dims=[["basin", lat], ["basin", lat]],
+        output_core_dims=[["basin", "gyre_boundary"], ["basin"]] * 2,
         dask="parallelized",
-        output_dtypes=[np.float64, np.int64],
+        output_dtypes=[np.float64, np.int64] * 2,
         dask_gufunc_kwargs={"output_sizes": {"gyre_boundary": max_gyre_boundaries}},
-        kwargs=dict(lat=grid.lat, valid=plan.row_status == 0, max_gyre_boundaries=max_gyre_boundaries),
+        kwargs=dict(lat=grid.lat, max_gyre_boundaries=max_gyre_boundaries,
+                    threshold=gyre_threshold_sv),
     )
 
     settings = _Settings(rho0, equatorial_half_width, island_min_area_km2, continent_min_area_km2,
-                         min_width_km, fill_gaps, given_mask=ocean_mask is not None)
+                         min_width_km, fill_gaps,
+                         given_mask=ocean_mask is not None or mask_from_geometry)
     fields = dict(curl=curl, v=v, psi=psi, transport=transport, crossings=crossings, count=count)
-    return _assemble(fields, plan, bid, names, lay, taux, settings)
+    ds = _assemble(fields, plan, bid, names, lay, taux, settings)
+    return _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, taux,
+                        tx, gyre_threshold_sv=gyre_threshold_sv)
 
 
 @dataclass(frozen=True)
@@ -356,6 +458,86 @@ class _Settings:
             fill_gaps=int(bool(self.fill_gaps)),
             land_mask_from="ocean_mask argument" if self.given_mask else "missing stress values",
         )
+
+
+def _check_geometry(geometry, grid):
+    if not isinstance(geometry, SverdrupGeometry):
+        raise TypeError(
+            f"geometry: expected the result of sverdrup_kit.sverdrup_geometry(), found "
+            f"{type(geometry).__name__}. Fix: geometry=sverdrup_geometry(ocean_mask, ...)."
+        )
+    g = geometry.grid
+    if (g.shape != grid.shape or g.periodic != grid.periodic or g.radius != grid.radius
+            or g.omega != grid.omega
+            or not np.allclose(g.lat, grid.lat) or not np.allclose(g.lon, grid.lon)):
+        raise ValueError(
+            f"geometry: expected a geometry built on the grid of taux ({grid!r}), found one "
+            f"on {g!r}. Fix: build it from a mask on taux's grid."
+        )
+
+
+def _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, original,
+                 canon, *, gyre_threshold_sv):
+    """Row quality, raw crossings, land classes and seas, on the user's grid and order."""
+    lat, lon = lay.lat_name, lay.lon_name
+    plan = geometry.plan
+    extra = xr.Dataset(
+        {
+            "row_status": status.assign_attrs(
+                long_name="status of the Sverdrup interior transport of each basin row",
+                **_flag_attrs(ROW_STATUS)),
+            "observed_fraction": observed.assign_attrs(
+                long_name="fraction of the row's counted cells with observed stress",
+                units="1",
+                comment="the rest was filled by nearest-ocean averaging (gaps, small "
+                "islands); row_status is mostly_filled where its mean over the leading "
+                f"dimensions is below {MIN_OBSERVED_FRACTION:g}"),
+            "raw_gyre_boundary_lat": raw_crossings.assign_attrs(
+                long_name="latitude of every sign change of the interior transport",
+                units="degrees_north",
+                comment="between neighbouring valid rows, without the threshold of "
+                "gyre_boundary_lat"),
+            "raw_gyre_boundary_count": raw_count.assign_attrs(
+                long_name="number of sign changes of the interior transport", units="1"),
+            "land_class": ((lat, lon), geometry.land.cls.copy(), {
+                "long_name": "land class",
+                "flag_values": np.arange(4, dtype=np.int8),
+                "flag_meanings": "ocean " + " ".join(v[0] for v in LAND_CLASSES.values()),
+                "comment": "; ".join(f"{v[0]}: {v[1]}" for v in LAND_CLASSES.values())}),
+        },
+        coords={lat: canon[lat], lon: canon[lon], "basin": ds["basin"].values},
+    )
+    if geometry.basins_used.startswith("earth"):
+        extra["crossed_seas"] = (("basin", lat), plan.crossed_seas.astype(str), {
+            "long_name": "named seas that the row's counted ocean crosses",
+            "comment": "space-separated names from sverdrup_kit.geometry.earth.EARTH_SEAS"})
+        extra["ending_seas"] = (("basin", lat), plan.ending_seas.astype(str), {
+            "long_name": "excluded seas whose edge ends the row's counted ocean",
+            "comment": "the counted ocean ends where it meets these seas, as on a coast"})
+    extra = from_canonical(extra, lay, original)
+    out = ds.drop_vars(["row_status"]).merge(extra, compat="override", join="override")
+    out["gyre_boundary_lat"].attrs["comment"] = (
+        f"sign changes where the interior transport reaches {gyre_threshold_sv:g} Sv on both "
+        "sides, between valid rows only; every sign change is in raw_gyre_boundary_lat")
+    out.attrs.update(
+        basins=geometry.basins_used,
+        gyre_threshold_sv=gyre_threshold_sv,
+        land_connectivity=geometry.options["land_connectivity"],
+    )
+    if geometry.basins_used.startswith("earth"):
+        out.attrs["marginal_seas"] = (
+            "Earth seas (sverdrup_kit.geometry.earth.EARTH_SEAS): excluded "
+            + ", ".join(n for n, x in zip(geometry.sea_names, _policies(geometry)) if not x)
+            + "; counted " + ", ".join(n for n, x in zip(geometry.sea_names,
+                                                          _policies(geometry)) if x))
+    return out
+
+
+def _policies(geometry):
+    from ..geometry.earth import COUNTED, EARTH_SEAS
+
+    seas = geometry.options.get("seas") or {}
+    return [seas.get(n, EARTH_SEAS[n]["policy"]) == COUNTED for n in geometry.sea_names]
 
 
 def _flag_attrs(table):

@@ -12,10 +12,10 @@ from sverdrup_kit.geometry.basins import (
     SMALL_ISLAND,
     basin_ids,
     classify_land,
-    label_cells,
-    row_groups,
 )
 from sverdrup_kit.geometry.grid import SphericalGrid
+from sverdrup_kit.geometry.lines import label_cells
+from sverdrup_kit.geometry.rows import END_COAST, find_groups
 
 
 def grid(d=2.0):
@@ -40,9 +40,8 @@ def test_labels_wrap_across_the_seam_of_a_periodic_grid():
     assert (n_periodic, n_regional) == (1, 2)
 
 
-def test_ocean_connects_through_faces_and_land_through_corners():
-    # A diagonal pair of cells: two pieces of ocean, one piece of land (common practice for
-    # complementary 4/8 connectivity on a grid).
+def test_face_and_corner_connectivity():
+    # A diagonal pair of cells: two pieces through faces, one through corners.
     m = np.array([[True, False], [False, True]])
     assert label_cells(m, periodic=False)[1] == 2
     assert label_cells(m, periodic=False, diagonal=True)[1] == 1
@@ -86,25 +85,30 @@ def test_land_cut_by_the_edge_of_a_regional_grid_is_a_continent():
     assert np.all(cls[:, -1] == CONTINENT)
 
 
+def _groups(cls, land, periodic):
+    cls = np.asarray(cls)[None, :]
+    land = np.asarray(land)[None, :]
+    return find_groups(cls == OCEAN, cls, land, np.ones(cls.shape), periodic=periodic)
+
+
 def test_row_groups_join_runs_across_large_islands_only():
     #            0 1 2 3 4 5 6 7 8 9
     # row:       C w w L w w C w w C      (C continent, L large island, w water)
     cls = np.array([3, 0, 0, 2, 0, 0, 3, 0, 0, 3])
     land = np.array([0, -1, -1, 1, -1, -1, 0, -1, -1, 0])
-    groups = row_groups(cls == OCEAN, cls, land, periodic=False)
-    assert len(groups) == 2
-    g = max(groups, key=lambda g: len(g.runs))
-    assert g.runs == [(4, 2), (1, 2)]  # east to west
-    assert g.east[0] == CONTINENT and g.west[0] == CONTINENT
-    other = [x for x in groups if x is not g][0]
-    assert other.runs == [(7, 2)]
+    g = _groups(cls, land, periodic=False)
+    assert g.row.size == 2
+    assert g.run_group.tolist() == [0, 0, 1]
+    assert (g.k0.tolist(), g.k1.tolist()) == ([1, 7], [6, 9])
+    assert g.width.tolist() == [4.0, 2.0]  # water cells only
+    assert np.all(g.east == END_COAST) and np.all(g.west == END_COAST)
 
 
 def test_row_of_water_and_islands_all_round_is_circular():
     cls = np.array([0, 0, 2, 0, 0, 0])
     land = np.array([-1, -1, 0, -1, -1, -1])
-    groups = row_groups(cls == OCEAN, cls, land, periodic=True)
-    assert len(groups) == 1 and groups[0].circular
+    g = _groups(cls, land, periodic=True)
+    assert g.row.size == 1 and bool(g.circular[0])
 
 
 def test_basin_ids_names_and_round_trip():

@@ -438,7 +438,7 @@ def test_inputs_are_not_modified_and_metadata_is_complete(world):
     assert ds.wind_stress_curl.attrs["units"] == "N m-3"
     for name, var in ds.data_vars.items():
         assert "long_name" in var.attrs, name
-    assert list(ds.row_status.attrs["flag_values"]) == [0, 1, 2, 3, 4, 5]
+    assert list(ds.row_status.attrs["flag_values"]) == list(range(12))
 
 
 # ------------------------------------------------------------------------------------------
@@ -664,3 +664,213 @@ def test_longitude_before_latitude_in_the_dimension_order(world):
     assert ds.sverdrup_streamfunction.dims == ("lon", "lat")
     np.testing.assert_array_equal(ds.sverdrup_streamfunction.T.values, ref.sverdrup_streamfunction.values)
     np.testing.assert_array_equal(ds.interior_transport.values, ref.interior_transport.values)
+
+
+# ------------------------------------------------------------------------------------------
+# Defaults that cannot mislead (issue 10): invented worlds
+# ------------------------------------------------------------------------------------------
+
+
+def _walled_world():
+    """Two pole-to-pole walls (120-130E and 300-310E) and a continent at 60-70E between 30S and
+    70N: south of its tip one ocean row joins the oceans on either side of it."""
+    lat, lon = grid()
+    land = box(lat, lon, 120, 130, -90, 90) | box(lat, lon, 300, 310, -90, 90)
+    land |= box(lat, lon, 60, 70, -30, 70) | (np.abs(lat)[:, None] > 76) & (lon >= 0)
+    ocean = ~land
+    tx, ty = linear_stress(ocean, lat, lon)
+    return tx, ty, field(ocean, lat, lon, units="1")
+
+
+def test_rows_joining_two_oceans_south_of_a_continent_are_never_valid():
+    # Before issue 10 the automatic basins made the band south of the continent a basin of
+    # its own whose rows, from one wall to the other past the continent's tip, were valid.
+    tx, ty, mask = _walled_world()
+    ds = sverdrup_transport(tx, ty, ocean_mask=mask)
+    st = ds.row_status
+    passing = st.where(st == 7).notnull().any("basin")
+    # The rows from 31S south to the polar land, and from 71N north to it, pass the
+    # continent (derived from the map).
+    assert passing.sel(lat=slice(-75, -31)).all() and passing.sel(lat=slice(71, 75)).all()
+    assert not passing.sel(lat=slice(-29, 69)).any()
+    assert np.isnan(ds.interior_transport.where(st == 7)).all()
+
+
+def test_rows_spanning_more_than_half_the_globe_are_never_valid():
+    # One narrow continent and polar land: every row runs from the continent's western
+    # coast westward round the globe to its eastern coast, 340 degrees (derived).
+    lat, lon = grid()
+    land = box(lat, lon, 0, 20, -60, 60) | (np.abs(lat)[:, None] > 70) & (lon >= 0)
+    tx, ty = linear_stress(~land, lat, lon)
+    ds = sverdrup_transport(tx, ty, ocean_mask=field(~land, lat, lon, units="1"))
+    st = ds.row_status.isel(basin=0)
+    rows = st.sel(lat=slice(-59, 59)).values
+    band = np.abs(st.sel(lat=slice(-59, 59)).lat.values) < DEFAULT_EQUATORIAL_HALF_WIDTH
+    assert np.all(rows[~band] == 6)
+    assert not (ds.row_status == 0).any()
+
+
+def test_gyre_boundaries_need_the_threshold_on_both_sides():
+    from sverdrup_kit._compiled.scan import gyre_boundaries
+
+    lat = np.arange(10.0, 20.0)
+    # Hand-made: a wiggle about zero (3 raw crossings between 11N and 14N) between -5 and +5.
+    t = np.array([[-5.0, -0.3, 0.2, -0.1, 0.4, 5.0, 6.0, 7.0, 6.0, 5.0]])
+    valid = np.ones_like(t, dtype=bool)
+    y, n = gyre_boundaries(t, valid, lat=lat, max_gyre_boundaries=4, threshold=2.0)
+    yr, nr = gyre_boundaries(t, valid, lat=lat, max_gyre_boundaries=4, threshold=0.0)
+    assert (int(n[0]), int(nr[0])) == (1, 3)
+    # The boundary is the middle one of the raw crossings between 10N and 15N (derived by
+    # linear interpolation: zeros at 11.6, 12.667 and 13.2).
+    np.testing.assert_allclose(yr[0, :3], [11 + 0.3 / 0.5, 12 + 0.2 / 0.3, 13 + 0.1 / 0.5],
+                               rtol=1e-12)
+    assert y[0, 0] == yr[0, 1] and np.isnan(y[0, 1:]).all()
+    # Never bridged across a row that is not valid.
+    valid[0, 3] = False
+    y, n = gyre_boundaries(t, valid, lat=lat, max_gyre_boundaries=4, threshold=2.0)
+    assert int(n[0]) == 0
+
+
+def test_pole_rows_carry_no_curl():
+    # Ocean at the North Pole: before issue 10 the pole row carried the curl of a one-sided
+    # difference divided by cos(89 degrees).
+    lat, lon = grid()
+    ocean = (lat[:, None] > 40) & (lon >= 0)
+    ocean &= ~box(lat, lon, 0, 40, 40, 80)
+    tx, ty = linear_stress(ocean, lat, lon)
+    ds = sverdrup_transport(tx, ty)
+    assert ds.wind_stress_curl.sel(lat=89.0).isnull().all()
+    assert ds.wind_stress_curl.sel(lat=87.0).notnull().any()
+
+
+def test_rows_mostly_filled_are_flagged_with_their_observed_fraction(world):
+    tx, ty, mask = world
+    # Remove the stress from most of the western basin's row at 31N: its counted cells are
+    # the 27 east of the peninsula (26-80E); 15 of them (26-56E) lose their stress.
+    gone = (tx.lat == 31.0) & (tx.lon > 0) & (tx.lon < 56.5)
+    ds = sverdrup_transport(tx.where(~gone), ty.where(~gone), ocean_mask=mask)
+    b = int(ds.basin_id.sel(lat=31.0, lon=41.0))
+    counted = (ds.integration_class.sel(lat=31.0) == 1) & (ds.basin_id.sel(lat=31.0) == b)
+    assert int(counted.sum()) == 27 and int((counted & gone.sel(lat=31.0)).sum()) == 15
+    frac = float(ds.observed_fraction.isel(basin=b).sel(lat=31.0))
+    assert frac == pytest.approx(12 / 27, abs=1e-12)
+    assert frac < 0.5
+    assert int(ds.row_status.isel(basin=b).sel(lat=31.0)) == 10
+    assert np.isfinite(float(ds.interior_transport.isel(basin=b).sel(lat=31.0)))
+    assert float(ds.observed_fraction.isel(basin=b).sel(lat=41.0)) == 1.0
+
+
+def test_cautions_poleward_of_the_circumpolar_band_and_over_shelves():
+    # A circumpolar channel (50S-60S) with a closed basin south of it (60S-76S), and a
+    # shallow shelf over the northern half of a basin north of it.
+    lat, lon = grid()
+    ocean = box(lat, lon, -1, 361, -60, -50) | box(lat, lon, 0, 100, -76, -50)
+    ocean |= box(lat, lon, 0, 100, -50, -20)
+    tx, ty = linear_stress(ocean, lat, lon)
+    relief = np.where(ocean, -4000.0, 500.0)
+    relief[(lat[:, None] > -36) & (lon[None, :] < 100)] = -300.0
+    ds = sverdrup_transport(tx, ty, ocean_mask=field(ocean, lat, lon, units="1"),
+                            relief=field(relief, lat, lon, units="m"))
+    st = ds.row_status.isel(basin=0)
+    assert np.all(st.sel(lat=slice(-75, -61)) == 8)
+    assert np.all(st.sel(lat=slice(-59, -51)) == 2)
+    assert np.all(st.sel(lat=slice(-35, -21)) == 9)
+    assert np.all(st.sel(lat=slice(-49, -37)) == 0)
+    assert np.isfinite(ds.interior_transport.isel(basin=0).sel(lat=slice(-75, -61))).all()
+
+
+def test_same_results_with_and_without_the_cache_in_memory_and_chunked(world):
+    from sverdrup_kit.geometry.integral import clear_geometry_cache, sverdrup_geometry
+
+    tx, ty, mask = world
+    tx4, ty4 = _stack_time(tx), _stack_time(ty)
+    clear_geometry_cache()
+    fresh = sverdrup_transport(tx4, ty4, ocean_mask=mask)
+    cached = sverdrup_transport(tx4, ty4, ocean_mask=mask)
+    given = sverdrup_transport(tx4, ty4, geometry=sverdrup_geometry(mask))
+    chunked = sverdrup_transport(tx4.chunk({"time": 1}), ty4.chunk({"time": 2}),
+                                 ocean_mask=mask).compute()
+    for other in (cached, given, chunked):
+        xr.testing.assert_identical(other, fresh)
+    with pytest.raises(ValueError, match="geometry: expected a geometry built on the grid"):
+        sverdrup_transport(tx4.isel(lat=slice(1, None)), ty4.isel(lat=slice(1, None)),
+                           geometry=sverdrup_geometry(mask))
+
+
+# ------------------------------------------------------------------------------------------
+# The real Earth (issue 10): the COADS climatology on the 2 degree relief mask, defaults
+# ------------------------------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def coads_default(marine_climatology, etopo60):
+    from sverdrup_kit.geometry import integral
+    from sverdrup_kit.io.readers import open_winds
+    from sverdrup_kit.physics.stress import wind_stress
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        w = open_winds(marine_climatology)
+        mean = wind_stress(w["u"], w["v"], drag_law="large-pond-1981").mean("time").compute()
+    mask = _etopo_mask_on(mean, etopo60)
+    integral._NOTICE_GIVEN = False
+    with pytest.warns(integral.EarthBasinsNotice, match="Earth basins are used"):
+        ds = sverdrup_transport(mean["taux"], mean["tauy"], ocean_mask=mask)
+    return ds.compute()
+
+
+@pytest.mark.realdata
+def test_coads_default_basins_are_the_earth_basins(coads_default):
+    ds = coads_default
+    assert list(ds.basin.values) == ["atlantic", "pacific", "indian"]
+    assert ds.attrs["basins"] == "earth (detected)"
+
+
+@pytest.mark.realdata
+def test_coads_no_valid_row_spans_two_oceans_or_half_the_globe(coads_default):
+    # Before issue 10 the default basins ran rows at 39-55S from Chile westward round the
+    # globe to Argentina and called them valid (-147.5 Sv at 55S).
+    ds = coads_default
+    valid = ds.row_status == 0
+    span = (ds.eastern_coast_lon - ds.western_coast_lon) % 360
+    assert float(span.where(valid).max()) <= 180.0
+    # Each valid row's counted cells lie in its own basin only (the basins are the oceans).
+    # South of the capes (45S-61S) no basin row has both coasts.
+    assert not valid.sel(lat=slice(-61, -45)).any()
+
+
+@pytest.mark.realdata
+def test_coads_marginal_seas_and_sub_basins(coads_default):
+    # Times Atlas of the World / common practice: the Bay of Bengal and the Labrador Sea are
+    # counted in the Indian and Atlantic interiors; the Persian Gulf, the South China Sea and
+    # the Sea of Japan are seas of their own, not counted.
+    ic = coads_default.integration_class
+    assert int(ic.sel(lat=15.0, lon=89.0)) == 1   # Bay of Bengal
+    assert int(ic.sel(lat=15.0, lon=65.0)) == 1   # Arabian Sea
+    assert int(ic.sel(lat=59.0, lon=305.0)) == 1  # Labrador Sea
+    assert int(ic.sel(lat=27.0, lon=51.0)) != 1   # Persian Gulf
+    assert int(ic.sel(lat=15.0, lon=115.0)) == 2  # South China Sea: own streamfunction
+    assert int(ic.sel(lat=41.0, lon=135.0)) == 2  # Sea of Japan
+    seas = coads_default.crossed_seas
+    assert "bay_of_bengal" in seas.sel(basin="indian", lat=15.0).item()
+    assert "labrador_sea" in seas.sel(basin="atlantic", lat=59.0).item()
+    ends = coads_default.ending_seas
+    assert "caribbean" in ends.sel(basin="atlantic", lat=15.0).item()
+    assert "south_china_sea" in ends.sel(basin="pacific", lat=17.0).item()
+
+
+@pytest.mark.realdata
+def test_coads_pacific_interior_ends_on_the_philippines(coads_default):
+    # Common practice: between 9N and 17N the Pacific interior ends on the Philippines'
+    # Pacific coast, where the Mindanao Current and the Kuroshio's source flow (Luzon
+    # 121.5-122.5E, Samar and Mindanao 125-126.5E; Times Atlas of the World).
+    w = coads_default.western_coast_lon.sel(basin="pacific", lat=slice(9, 17)) % 360
+    assert np.all((w >= 121.0) & (w <= 127.0)), w.values
+    assert np.all(coads_default.row_status.sel(basin="pacific", lat=slice(9, 17)) == 0)
+
+
+@pytest.mark.realdata
+def test_coads_northern_indian_ocean_has_at_most_one_gyre_boundary(coads_default):
+    g = coads_default.gyre_boundary_lat.sel(basin="indian")
+    assert int((g > 0).sum()) <= 1
+    assert coads_default.attrs["gyre_threshold_sv"] == 2.0
