@@ -22,6 +22,7 @@ record). In-memory fields are checked at call time and the error gives the place
 
 from __future__ import annotations
 
+import functools
 import numbers
 import warnings
 
@@ -154,7 +155,10 @@ def _where(index, dims, coords) -> str:
 
 
 def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True):
-    """The field check on one array: fills -> NaN (warn), inf and implausible -> InputError."""
+    """The field check on one array: fills -> NaN (warn), inf and implausible -> InputError.
+
+    With ``kind=None`` only the fills are looked for (readers, before units are known).
+    """
     a = np.asarray(a)
     out = a.astype(np.float64)
     if fills:
@@ -171,6 +175,8 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True):
             out = np.where(hit, np.nan, out)
     if factor != 1.0:
         out = out * factor
+    if kind is None:
+        return out
     inf = np.isinf(out)
     if inf.any():
         at = _where(np.argwhere(inf)[0], dims, coords) if dims is not None else ""
@@ -195,8 +201,9 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True):
 
 def _apply(da: xr.DataArray, *, name, kind, factor, fills) -> xr.DataArray:
     if da.chunks is not None:
-        data = da.data.map_blocks(_screen, name=name, kind=kind, factor=factor, fills=fills,
-                                  dtype=np.float64)
+        # partial, not keywords: map_blocks keeps 'name' for itself.
+        check = functools.partial(_screen, name=name, kind=kind, factor=factor, fills=fills)
+        data = da.data.map_blocks(check, dtype=np.float64)
     else:
         coords = {d: np.asarray(da[d].values) for d in da.dims if d in da.coords}
         data = _screen(da.values, name=name, kind=kind, factor=factor, dims=da.dims,
@@ -240,3 +247,16 @@ def array_field(values, name: str, kind: str) -> np.ndarray:
     a = np.asarray(values)
     return _screen(a, name=name, kind=kind, factor=1.0, dims=tuple(f"axis{i}" for i in
                                                                       range(a.ndim)), coords={})
+
+
+def fills_to_missing(da: xr.DataArray, name: str) -> xr.DataArray:
+    """``da`` as float64 with common undeclared fill values set to NaN, with a warning.
+
+    For readers, which check plausibility later, once the units are known.
+    """
+    return _apply(da, name=name, kind=None, factor=1.0, fills=True)
+
+
+def checked(da: xr.DataArray, name: str, kind: str) -> xr.DataArray:
+    """``da``, already in SI units, checked for infinities and plausibility (no fill search)."""
+    return _apply(da, name=name, kind=kind, factor=1.0, fills=False)
