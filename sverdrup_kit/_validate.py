@@ -144,21 +144,24 @@ def _fill_cells(a: np.ndarray) -> np.ndarray:
     return hit
 
 
-def _where(index, dims, coords) -> str:
-    if dims is None:
-        return f" at index {tuple(int(i) for i in index)}"
+def _where(index, offset, dims, coords) -> str:
     parts = []
-    for d, i in zip(dims, index):
+    for d, i in zip(dims, np.add(index, offset)):
         c = coords.get(d)
         parts.append(f"{d}={c[i]}" if c is not None else f"{d}[{int(i)}]")
     return " at " + ", ".join(parts)
 
 
-def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True):
+def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True, block_info=None):
     """The field check on one array: fills -> NaN (warn), inf and implausible -> InputError.
 
-    With ``kind=None`` only the fills are looked for (readers, before units are known).
+    With ``kind=None`` only the fills are looked for (readers, before units are known). On a
+    dask block, ``block_info`` (from map_blocks) places the block in the whole array.
     """
+    offset, scope = (0,) * np.ndim(a), ""
+    if block_info is not None:
+        offset = tuple(lo for lo, _ in block_info[0]["array-location"])
+        scope = " in one block of the data"
     a = np.asarray(a)
     out = a.astype(np.float64)
     if fills:
@@ -166,8 +169,9 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True):
         if hit.any():
             example = a[hit].flat[0]
             warnings.warn(
-                f"{name}: found {int(hit.sum())} cell(s) holding {example!r}, a common fill "
-                "value not declared in _FillValue or missing_value; they are taken as missing. "
+                f"{name}: found {int(hit.sum())} cell(s){scope} holding {example!r}, a common "
+                "fill value not declared in _FillValue or missing_value; they are taken as "
+                "missing. "
                 f"Fix: declare it, e.g. {name}.attrs['_FillValue'] = {example!r}, or mask it "
                 f"with {name}.where({name} != {example!r}).",
                 UndeclaredFillValueWarning, stacklevel=5,
@@ -179,10 +183,10 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True):
         return out
     inf = np.isinf(out)
     if inf.any():
-        at = _where(np.argwhere(inf)[0], dims, coords) if dims is not None else ""
+        at = _where(np.argwhere(inf)[0], offset, dims, coords) if dims is not None else ""
         raise InputError(
             f"{name}: expected finite values or NaN for missing, found {int(inf.sum())} "
-            f"infinite cell(s){at}. Fix: mark them missing, e.g. "
+            f"infinite cell(s){scope}{at}. Fix: mark them missing, e.g. "
             f"{name}.where(np.isfinite({name})), or find where they came from."
         )
     limit, units, why = PLAUSIBLE_LIMITS[kind]
@@ -190,22 +194,23 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True):
         big = np.abs(out) > limit
     if big.any():
         idx = np.argwhere(big)[0]
-        at = _where(idx, dims, coords) if dims is not None else ""
+        at = _where(idx, offset, dims, coords) if dims is not None else ""
         raise InputError(
             f"{name}: expected {_FIELD_WORDS[kind]} of magnitude at most {limit:g} {units} "
-            f"({why}), found {int(big.sum())} cell(s) beyond, e.g. {out[tuple(idx)]:g} "
+            f"({why}), found {int(big.sum())} cell(s){scope} beyond, e.g. {out[tuple(idx)]:g} "
             f"{units}{at}. Fix: check the variable, its units attribute and its fill values."
         )
     return out
 
 
 def _apply(da: xr.DataArray, *, name, kind, factor, fills) -> xr.DataArray:
+    coords = {d: np.asarray(da[d].values) for d in da.dims if d in da.coords}
     if da.chunks is not None:
         # partial, not keywords: map_blocks keeps 'name' for itself.
-        check = functools.partial(_screen, name=name, kind=kind, factor=factor, fills=fills)
+        check = functools.partial(_screen, name=name, kind=kind, factor=factor, fills=fills,
+                                  dims=da.dims, coords=coords)
         data = da.data.map_blocks(check, dtype=np.float64)
     else:
-        coords = {d: np.asarray(da[d].values) for d in da.dims if d in da.coords}
         data = _screen(da.values, name=name, kind=kind, factor=factor, dims=da.dims,
                        coords=coords, fills=fills)
     return da.copy(data=data)

@@ -9,13 +9,17 @@ is left half-written.
 from __future__ import annotations
 
 import argparse
+import datetime as _dt
 import os
+import shlex
 import sys
 import time
 import warnings
 from pathlib import Path
 
 import numpy as np
+
+from ._outfolder import OutputFolder
 
 EXIT_USAGE = 2
 
@@ -147,6 +151,9 @@ def _parser() -> argparse.ArgumentParser:
     d.add_argument("--latitudes", type=_latitudes_arg, default=None, metavar="LAT,LAT,...",
                    help="latitudes of the printed summary, degrees_north (default "
                         "-40,-30,-20,20,30,40,50)")
+    d.add_argument("--overwrite", action="store_true",
+                   help="write into a folder that holds files sverdrup-kit did not write "
+                        "(files of the same names are replaced; others are left alone)")
     d.add_argument("--no-progress", action="store_true",
                    help="do not draw a progress bar for computations longer than a second")
     d.add_argument("--quiet", action="store_true", help="print only errors")
@@ -410,13 +417,23 @@ def _adjustment_summary(res, say, lats) -> None:
 
 
 def _run_diagnose(args) -> int:
+    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
+    # --- output folder: checked before any computation (see sverdrup_kit._outfolder) ---
+    folder = OutputFolder(args.out, overwrite=args.overwrite)
+    folder.prepare()
+    try:
+        return _diagnose_into(args, folder, say)
+    except BaseException:
+        folder.abandon()
+        raise
+
+
+def _diagnose_into(args, folder, say) -> int:
+    from . import __version__
     from .io.writers import write_netcdf
     from .pipeline import diagnose
 
-    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
-    out = Path(args.out)
-    if out.exists() and not out.is_dir():
-        raise CommandError(f"--out: expected a folder, found a file '{out}'. Fix: pick a folder.")
+    out = folder.path
     t0 = time.perf_counter()
     if not args.synthetic and not args.source:
         raise CommandError("source: expected a wind file (or --synthetic), found none. Fix: "
@@ -441,12 +458,21 @@ def _run_diagnose(args) -> int:
 
     with progress(enabled=not (args.no_progress or args.quiet)):
         res = res.compute()
-    out.mkdir(parents=True, exist_ok=True)
+    # --- provenance and writing: only files the toolkit owns, each whole ---
+    command = _command_line(args)
+    res = _with_provenance(res, args, command, __version__)
+    folder.reserve(["results.nc"], command=command, version=__version__)
     path = write_netcdf(res, out / "results.nc")
     say(f"wrote {path}")
     _summary(res, say, args.latitudes)
+    staged = None
     if not args.no_figures:
-        _save_figures(res, out, args, say)
+        # Drawn in a hidden staging folder, moved in whole; commit() says what it wrote.
+        staged = folder.staging()
+        _save_figures(res, staged, args, lambda *a: None)
+    for p in folder.commit(["results.nc"], command=command, version=__version__,
+                           staged=staged):
+        say(f"wrote {p}")
     say(f"done in {time.perf_counter() - t0:.1f} s")
     return 0
 
@@ -472,6 +498,28 @@ def _resolve_mask(args, winds, say):
     return mask if mask is not None else "data"
 
 
+def _command_line(args) -> str:
+    argv = getattr(args, "argv", None)
+    return shlex.join(["sverdrup-kit", *(sys.argv[1:] if argv is None else argv)])
+
+
+def _with_provenance(res, args, command: str, version: str):
+    """``res`` with CF ``history`` and ``source``: the input, command line, drag law, version."""
+    src = "the bundled synthetic world" if args.synthetic else ", ".join(
+        str(s if "://" in str(s) else Path(s).resolve()) for s in args.source)
+    stamp = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+    before = res.attrs.get("history")
+    history = f"{stamp} {command}" + (f"\n{before}" if before else "")
+    drag = "none (stress given)" if args.input_kind == "stress" else str(args.drag_law)
+    return res.assign_attrs(
+        history=history,
+        source=f"sverdrup_kit {version} diagnose of {src}; drag law: {drag}",
+        input=src,
+        command_line=command,
+        sverdrup_kit_version=version,
+    )
+
+
 def _warn_one_line(message, category, filename, lineno, file=None, line=None):
     """Show a warning as one line naming its kind, without the source line it came from."""
     print(f"sverdrup-kit: {category.__name__}: {message}", file=sys.stderr if file is None else file)
@@ -480,6 +528,7 @@ def _warn_one_line(message, category, filename, lineno, file=None, line=None):
 def main(argv=None) -> int:
     """Entry point of the ``sverdrup-kit`` command."""
     args = _parser().parse_args(argv)
+    args.argv = None if argv is None else list(argv)
     os.environ.setdefault("MPLBACKEND", "Agg")
     try:
         with warnings.catch_warnings():
@@ -492,7 +541,7 @@ def main(argv=None) -> int:
     except CommandError as err:
         print(f"sverdrup-kit: {err}", file=sys.stderr)
         return EXIT_USAGE
-    except (ValueError, TypeError, KeyError, FileNotFoundError) as err:
+    except (ValueError, TypeError, KeyError, OSError) as err:
         msg = str(err).strip().splitlines()[0] if str(err).strip() else err.__class__.__name__
         print(f"sverdrup-kit: {msg}", file=sys.stderr)
         return EXIT_USAGE

@@ -791,6 +791,10 @@ def basin_ids(
     from .coords import from_canonical, require_dataarray
 
     ocean_mask = require_dataarray(ocean_mask, "ocean_mask")
+    island_min_area_km2 = _validate.number(island_min_area_km2, "island_min_area_km2",
+                                           sign="non-negative", units="km2", example=1e5)
+    continent_min_area_km2 = _validate.number(continent_min_area_km2, "continent_min_area_km2",
+                                              sign="non-negative", units="km2", example=5e6)
     grid = SphericalGrid.from_data(ocean_mask, argname="ocean_mask")
     lay = grid.layout
     can = to_canonical(ocean_mask, lay).transpose(lay.lat_name, lay.lon_name)

@@ -1126,9 +1126,12 @@ def boundary_current(
     if set(solution["barotropic_streamfunction"].dims) != set(dims):
         raise ValueError(
             f"solution: expected one (row, column) field with dims {dims}, found "
-            f"{solution['streamfunction'].dims}. Fix: select one field, e.g. solution.isel(time=0)."
+            f"{solution['barotropic_streamfunction'].dims}. Fix: select one field, e.g. solution.isel(time=0)."
         )
-    rho0 = solution.attrs.get("rho0", constants.RHO0) if rho0 is None else rho0
+    rho0 = _validate.number(solution.attrs.get("rho0", constants.RHO0) if rho0 is None else rho0,
+                            "rho0", units="kg m-3", example=1025.0)
+    interior_offset = _validate.number(interior_offset, "interior_offset", units="widths",
+                                       example=3.0)
     psi = solution["barotropic_streamfunction"].transpose(*dims).values * constants.SVERDRUP_IN_M3_S
     V = solution["barotropic_northward_transport"].transpose(*dims).values
     v = solution["barotropic_northward_velocity"].transpose(*dims).values
