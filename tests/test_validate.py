@@ -13,6 +13,7 @@ import pytest
 import xarray as xr
 
 from sverdrup_kit import (
+    basin_ids,
     ekman,
     munk_boundary_layer,
     munk_width,
@@ -162,6 +163,7 @@ def test_masks_with_other_values_than_0_1_are_refused_everywhere(bad):
     for call in (lambda: sverdrup_transport(*stress(), ocean_mask=om),
                  lambda: solve_barotropic(curl(), r=1e-6, ocean_mask=om),
                  lambda: solve_basin(x, y, c, r=1e-6, beta=2e-11, ocean_mask=bm),
+                 lambda: basin_ids(om),
                  lambda: map_field(curl(), ocean_mask=om)):
         with pytest.raises(InputError, match="ocean_mask: expected a mask of booleans or 0/1"):
             call()
