@@ -167,13 +167,13 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True, block_
     if fills:
         hit = _fill_cells(a)
         if hit.any():
-            example = a[hit].flat[0]
+            example = float(a[hit].flat[0])
             warnings.warn(
-                f"{name}: found {int(hit.sum())} cell(s){scope} holding {example!r}, a common "
+                f"{name}: found {int(hit.sum())} cell(s){scope} holding {example:g}, a common "
                 "fill value not declared in _FillValue or missing_value; they are taken as "
                 "missing. "
-                f"Fix: declare it, e.g. {name}.attrs['_FillValue'] = {example!r}, or mask it "
-                f"with {name}.where({name} != {example!r}).",
+                f"Fix: declare it in the variable's _FillValue attribute ({example:g}), or mask "
+                "it yourself before passing the data.",
                 UndeclaredFillValueWarning, stacklevel=5,
             )
             out = np.where(hit, np.nan, out)

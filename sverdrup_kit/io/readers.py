@@ -431,10 +431,7 @@ def _require_whole(path, func) -> None:
     from scipy.io import netcdf_file
 
     try:
-        with warnings.catch_warnings():
-            # Closing a mapped file that its (unused) arrays still point to only warns.
-            warnings.simplefilter("ignore", RuntimeWarning)
-            netcdf_file(path, "r", mmap=True).close()
+        nc = netcdf_file(path, "r", mmap=True)
     except (ValueError, TypeError, OSError):
         size = os.path.getsize(path)
         raise InputError(
@@ -442,6 +439,9 @@ def _require_whole(path, func) -> None:
             "bytes) holds less data than its header describes: it looks truncated, e.g. by an "
             "interrupted download or copy. Fix: fetch or copy the file again."
         ) from None
+    # The variables' arrays point into the mapped file: drop them so that it closes cleanly.
+    nc.variables.clear()
+    nc.close()
 
 
 def _require_file(path, func) -> None:
@@ -815,9 +815,9 @@ def _assemble(picked, fields, func, described, global_attrs, warned,
         steps.append("longitude reordered to increasing")
     elif not np.array_equal(layout.lon, np.asarray(picked[first][1][layout.lon_name], float)):
         steps.append("longitude unwrapped past the wrap-around to stay increasing")
-    steps.append(f"values below -{FILL_SENTINEL:g} or above {FILL_SENTINEL:g} and common "
-                 "undeclared fill values (-9999, -999, 1e20, ...; with a warning) "
-                 "set to NaN; float64")
+    steps.append(f"values below -{FILL_SENTINEL:g} or above {FILL_SENTINEL:g} and the "
+                 "undeclared fills -9999 and -999 set to NaN (with a warning where found); "
+                 "float64")
     if warned:
         # Components and files often share one time axis: say it once.
         message, note = warned[0]
