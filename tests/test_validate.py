@@ -312,3 +312,32 @@ def test_fill_on_dask_input_warns_at_compute():
         with dask.config.set(scheduler="synchronous"):
             res = out.compute()
     assert np.isnan(res.taux[:, 20, 45]).all()
+
+
+# ------------------------------------------------------------------------------------------
+# Curvilinear model grids take the same checks (the public functions dispatch to them)
+# ------------------------------------------------------------------------------------------
+
+
+def model_stress():
+    from sverdrup_kit.synthetic_grids import as_field, rotated_pole_grid, smooth_winds, with_bounds
+
+    lat, lon, clat, clon = rotated_pole_grid(6.0, pole_lat=40.0, pole_lon=-30.0)
+    tx, ty, _ = smooth_winds(lat, lon)
+    ds = xr.Dataset({"taux": as_field(0.1 * tx, lat, lon), "tauy": as_field(0.1 * ty, lat, lon)})
+    ds = with_bounds(ds, clat, clon)
+    return ds.taux, ds.tauy
+
+
+@pytest.mark.parametrize("call, match", [
+    (lambda tx, ty: sverdrup_transport(tx, ty, rho0="1025"), "^rho0: .*text"),
+    (lambda tx, ty: ekman(tx, ty, rho0=0.0), "^rho0: expected a finite number > 0"),
+    (lambda tx, ty: wind_stress_curl(_with(tx, np.inf, (3, 3)), ty), "^taux: .*infinite"),
+    (lambda tx, ty: sverdrup_transport(tx, _with(ty, 500.0, (3, 3))), "^tauy: .*beyond"),
+    (lambda tx, ty: sverdrup_transport(tx, ty, ocean_mask=xr.full_like(tx, -1.0)),
+     "^ocean_mask: expected a mask of booleans or 0/1"),
+])
+def test_model_grid_paths_follow_the_same_rules(call, match):
+    tx, ty = model_stress()
+    with pytest.raises(InputError, match=match):
+        call(tx, ty)
