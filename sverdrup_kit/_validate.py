@@ -129,19 +129,26 @@ def mask(values, name: str) -> np.ndarray:
 # --- fields ---
 
 
-def _fill_cells(a: np.ndarray) -> np.ndarray:
-    """Cells holding a common undeclared fill value, compared in the array's own precision."""
+def _fill_cells(a: np.ndarray) -> np.ndarray | None:
+    """Cells holding a common undeclared fill value, compared in the array's own precision;
+    None when there are none (the usual case, found without building the mask twice)."""
     if a.dtype.kind not in "iuf":
-        return np.zeros(a.shape, dtype=bool)
-    hit = np.zeros(a.shape, dtype=bool)
+        return None
+    hit = None
     info = np.finfo(a.dtype) if a.dtype.kind == "f" else np.iinfo(a.dtype)
     for fill in UNDECLARED_FILL_VALUES:
-        if info.min <= fill <= info.max:
-            hit |= a == np.asarray(fill).astype(a.dtype)
+        # Fills beyond the sentinel are found by it, in the same pass for all of them.
+        if abs(fill) < FILL_SENTINEL and info.min <= fill <= info.max:
+            eq = a == np.asarray(fill).astype(a.dtype)
+            hit = eq if hit is None else hit | eq
     if a.dtype.kind == "f":
         with np.errstate(invalid="ignore"):
-            hit |= np.isfinite(a) & (np.abs(a) >= FILL_SENTINEL)
-    return hit
+            # Two comparisons allocate less than abs() on a large field.
+            far = (a >= FILL_SENTINEL) | (a <= -FILL_SENTINEL)
+        if far.any():
+            far &= np.isfinite(a)
+            hit = far if hit is None else hit | far
+    return hit if hit is not None and hit.any() else None
 
 
 def _where(index, offset, dims, coords) -> str:
@@ -163,23 +170,27 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True, block_
         offset = tuple(lo for lo, _ in block_info[0]["array-location"])
         scope = " in one block of the data"
     a = np.asarray(a)
-    out = a.astype(np.float64)
-    if fills:
-        hit = _fill_cells(a)
-        if hit.any():
-            example = float(a[hit].flat[0])
-            warnings.warn(
-                f"{name}: found {int(hit.sum())} cell(s){scope} holding {example:g}, a common "
-                "fill value not declared in _FillValue or missing_value; they are taken as "
-                "missing. "
-                f"Fix: declare it in the variable's _FillValue attribute ({example:g}), or mask "
-                "it yourself before passing the data.",
-                UndeclaredFillValueWarning, stacklevel=5,
-            )
-            out = np.where(hit, np.nan, out)
+    out = np.array(a, dtype=np.float64)  # always a copy: the caller's data stay as they are
+    hit = _fill_cells(a) if fills else None
+    if hit is not None:
+        example = float(a[hit].flat[0])
+        warnings.warn(
+            f"{name}: found {int(hit.sum())} cell(s){scope} holding {example:g}, a common "
+            "fill value not declared in _FillValue or missing_value; they are taken as "
+            "missing. "
+            f"Fix: declare it in the variable's _FillValue attribute ({example:g}), or mask "
+            "it yourself before passing the data.",
+            UndeclaredFillValueWarning, stacklevel=5,
+        )
+        out[hit] = np.nan
     if factor != 1.0:
-        out = out * factor
+        out *= factor
     if kind is None:
+        return out
+    limit, units, why = PLAUSIBLE_LIMITS[kind]
+    with np.errstate(invalid="ignore"):
+        over = (out > limit) | (out < -limit)  # infinite values too: told apart if found
+    if not over.any():
         return out
     inf = np.isinf(out)
     if inf.any():
@@ -189,18 +200,13 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True, block_
             f"infinite cell(s){scope}{at}. Fix: mark them missing, e.g. "
             f"{name}.where(np.isfinite({name})), or find where they came from."
         )
-    limit, units, why = PLAUSIBLE_LIMITS[kind]
-    with np.errstate(invalid="ignore"):
-        big = np.abs(out) > limit
-    if big.any():
-        idx = np.argwhere(big)[0]
-        at = _where(idx, offset, dims, coords) if dims is not None else ""
-        raise InputError(
-            f"{name}: expected {_FIELD_WORDS[kind]} of magnitude at most {limit:g} {units} "
-            f"({why}), found {int(big.sum())} cell(s){scope} beyond, e.g. {out[tuple(idx)]:g} "
-            f"{units}{at}. Fix: check the variable, its units attribute and its fill values."
-        )
-    return out
+    idx = np.argwhere(over)[0]
+    at = _where(idx, offset, dims, coords) if dims is not None else ""
+    raise InputError(
+        f"{name}: expected {_FIELD_WORDS[kind]} of magnitude at most {limit:g} {units} "
+        f"({why}), found {int(over.sum())} cell(s){scope} beyond, e.g. {out[tuple(idx)]:g} "
+        f"{units}{at}. Fix: check the variable, its units attribute and its fill values."
+    )
 
 
 def _apply(da: xr.DataArray, *, name, kind, factor, fills) -> xr.DataArray:
