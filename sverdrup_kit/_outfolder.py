@@ -50,9 +50,10 @@ class OutputFolder:
         toolkit's are then replaced; others are left alone).
     """
 
-    def __init__(self, path, *, overwrite: bool = False):
+    def __init__(self, path, *, overwrite: bool = False, inputs=()):
         self.path = Path(path)
         self.overwrite = overwrite
+        self.inputs = [Path(p) for p in inputs]
         self.created: list[Path] = []
         self.previous: set[str] = set()
         self._staged: list[Path] = []
@@ -70,6 +71,14 @@ class OutputFolder:
         self._probe()
         self.previous = self._read_manifest()
         self.earlier = set(self.previous)
+        here = p.resolve()
+        for src in self.inputs:
+            if src.resolve().parent == here and src.name in self.previous | {"results.nc"}:
+                raise InputError(
+                    f"--out: expected a folder where no input would be replaced, found that "
+                    f"the input '{src}' is a file this run would replace or remove. Fix: "
+                    "write to another folder, or copy the input elsewhere first."
+                )
         entries = sorted(os.listdir(p))
         foreign = [n for n in entries
                    if n != MANIFEST and n not in self.previous

@@ -12,7 +12,9 @@ import argparse
 import datetime as _dt
 import os
 import shlex
+import signal
 import sys
+import threading
 import time
 import warnings
 from pathlib import Path
@@ -419,13 +421,30 @@ def _adjustment_summary(res, say, lats) -> None:
 def _run_diagnose(args) -> int:
     say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
     # --- output folder: checked before any computation (see sverdrup_kit._outfolder) ---
-    folder = OutputFolder(args.out, overwrite=args.overwrite)
+    local = [] if args.synthetic or "://" in str(args.source) else [args.source]
+    folder = OutputFolder(args.out, overwrite=args.overwrite, inputs=local)
     folder.prepare()
+    restore = _exit_on_sigterm()
     try:
         return _diagnose_into(args, folder, say)
     except BaseException:
         folder.abandon()
         raise
+    finally:
+        restore()
+
+
+def _exit_on_sigterm():
+    """Turn SIGTERM into SystemExit while running, so that half-written files are removed on
+    the way out (SIGKILL cannot be caught: the next run removes those leftovers)."""
+    if threading.current_thread() is not threading.main_thread():
+        return lambda: None
+
+    def terminated(signum, frame):
+        raise SystemExit(128 + signum)
+
+    before = signal.signal(signal.SIGTERM, terminated)
+    return lambda: signal.signal(signal.SIGTERM, before)
 
 
 def _diagnose_into(args, folder, say) -> int:

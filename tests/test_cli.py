@@ -236,6 +236,42 @@ def test_results_record_input_command_drag_law_and_version(rerun, small_winds):
     assert str(small_winds) in source and "trenberth-1990" in source and __version__ in source
 
 
+def test_an_input_in_the_folder_is_never_replaced(rerun, capsys):
+    # Re-diagnosing from the stress of an earlier results.nc into the same folder would
+    # replace the input it reads.
+    before = (rerun / "results.nc").read_bytes()
+    code = main(["diagnose", str(rerun / "results.nc"), "--input-kind", "stress", "--out",
+                 str(rerun), "--quiet", "--no-figures"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and "--out" in err and err.count("\n") == 0
+    assert (rerun / "results.nc").read_bytes() == before
+
+
+_KILLED_MID_WRITE = """
+import os, signal, sys
+import xarray as xr
+from sverdrup_kit.cli import main
+
+real = xr.Dataset.to_netcdf
+def to_netcdf(self, path, *a, **k):
+    with open(path, "wb") as fh:
+        fh.write(b"half a file")
+    os.kill(os.getpid(), signal.SIGTERM)
+    return real(self, path, *a, **k)
+xr.Dataset.to_netcdf = to_netcdf
+sys.exit(main(sys.argv[1:]))
+"""
+
+
+def test_sigterm_while_writing_leaves_no_partial_file(small_winds, tmp_path):
+    out = tmp_path / "o"
+    run = subprocess.run([sys.executable, "-c", _KILLED_MID_WRITE, "diagnose", str(small_winds),
+                          "--out", str(out), "--quiet", "--no-figures"],
+                         capture_output=True, text=True, timeout=300)
+    assert run.returncode in (143, -15)
+    assert not out.exists() or not [p.name for p in out.iterdir() if p.suffix == ".part"]
+
+
 def test_manifest_lists_exactly_the_files_written(synthetic_run):
     listed = json.loads((synthetic_run / MANIFEST).read_text())["files"]
     assert sorted(listed) == sorted(p.name for p in synthetic_run.iterdir() if p.name != MANIFEST)
