@@ -421,7 +421,7 @@ def _adjustment_summary(res, say, lats) -> None:
 def _run_diagnose(args) -> int:
     say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
     # --- output folder: checked before any computation (see sverdrup_kit._outfolder) ---
-    local = [] if args.synthetic or "://" in str(args.source) else [args.source]
+    local = [] if args.synthetic else [s for s in args.source if "://" not in str(s)]
     folder = OutputFolder(args.out, overwrite=args.overwrite, inputs=local)
     folder.prepare()
     restore = _exit_on_sigterm()
