@@ -242,6 +242,8 @@ def _spread_parser(sub, drag_laws) -> None:
                    help="a cell is ocean when at least this fraction of it is ocean (default 0.5)")
     s.add_argument("--out", default=None,
                    help="folder for spread.nc and spread.png (default: print the table only)")
+    s.add_argument("--overwrite", action="store_true",
+                   help="write into a folder that holds files sverdrup-kit did not write")
     s.add_argument("--quiet", action="store_true", help="print only the table and errors")
 
 
@@ -253,13 +255,28 @@ def _product_source(text: str):
 
 
 def _run_spread(args) -> int:
+    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
+    # --- output folder: checked before any computation (see sverdrup_kit._outfolder) ---
+    folder = None
+    if args.out is not None:
+        folder = OutputFolder(args.out, task="spread", outputs=("spread.nc", "spread.png"),
+                              overwrite=args.overwrite)
+        folder.prepare()
+    try:
+        return _spread_into(args, folder, say)
+    except BaseException:
+        if folder is not None:
+            folder.abandon()
+        raise
+
+
+def _spread_into(args, folder, say) -> int:
     import xarray as xr
 
-    from . import open_winds
+    from . import __version__, open_winds
     from .io.writers import write_netcdf
     from .spread import spread_table, transport_spread
 
-    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
     laws = [_drag_arg(x.strip()) for x in args.drag_laws.split(",") if x.strip()]
     speeds = [x.strip() for x in args.mean_speed.split(",") if x.strip()]
     sources, names = [], []
@@ -298,21 +315,29 @@ def _run_spread(args) -> int:
         print(f"  {r['basin']:<10s}{latitude_label(r['lat']):>7s}"
               f"{latitude_label(r['grid_lat']):>7s}{r['mean']:8.1f}{r['min']:8.1f}"
               f"{r['max']:8.1f}{r['max'] - r['min']:8.1f}{r['std']:7.1f}{r['count']:4d}  {obs}")
-    if args.out is not None:
-        out = Path(args.out)
-        if out.exists() and not out.is_dir():
-            raise CommandError(f"--out: expected a folder, found a file '{out}'. Fix: pick a "
-                               "folder.")
-        out.mkdir(parents=True, exist_ok=True)
-        say(f"wrote {write_netcdf(res, out / 'spread.nc')}")
+    if folder is not None:
+        # --- provenance and writing: only files the toolkit owns, each whole ---
+        command = _command_line(args)
+        stamp = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+        before = res.attrs.get("history")
+        res = res.assign_attrs(
+            history=f"{stamp} {command}" + (f"\n{before}" if before else ""),
+            source=f"sverdrup_kit {__version__} spread of {', '.join(args.products)}; drag "
+                   f"laws: {args.drag_laws}",
+            command_line=command, sverdrup_kit_version=__version__)
+        folder.reserve(["spread.nc"], command=command, version=__version__)
+        say(f"wrote {write_netcdf(res, folder.path / 'spread.nc')}")
         from .plotting.spread import plot_transport_spread
 
         import matplotlib.pyplot as plt
 
         fig, _ = plot_transport_spread(res, width="page")
-        fig.savefig(out / "spread.png", dpi=150)
+        staged = folder.staging()
+        fig.savefig(staged / "spread.png", dpi=150)
         plt.close(fig)
-        say(f"wrote {out / 'spread.png'}")
+        for p in folder.commit(["spread.nc"], command=command, version=__version__,
+                               staged=staged):
+            say(f"wrote {p}")
     return 0
 
 

@@ -313,3 +313,19 @@ def test_implausible_winds_fail_with_one_line(small_winds, tmp_path, capsys):
     assert "u (variable 'u')" in last and "beyond" in last and "1e+06" in last
     assert "lat=" in last and "lon=" in last
     assert not out.exists()
+
+
+def test_spread_refuses_a_users_folder_before_computing(small_winds, tmp_path, capsys,
+                                                        monkeypatch):
+    def fail(*a, **k):
+        raise AssertionError("the spread ran before the output folder was checked")
+
+    monkeypatch.setattr("sverdrup_kit.spread.transport_spread", fail)
+    out = tmp_path / "mine"
+    out.mkdir()
+    (out / "spread.nc").write_text("my own spread")
+    code = main(["spread", str(small_winds), "--ocean-mask", "data", "--out", str(out),
+                 "--quiet"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and "--overwrite" in err and err.count("\n") == 0
+    assert (out / "spread.nc").read_text() == "my own spread"
