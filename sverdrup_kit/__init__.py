@@ -22,6 +22,7 @@ from .errors import (
     InputError,
     MonthlyMeanWindWarning,
     TimeDecodingWarning,
+    UndeclaredFillValueWarning,
     UnitsError,
 )
 from .io.readers import open_stress, open_winds
@@ -116,6 +117,7 @@ __all__ = [
     "sverdrup_transport",
     "SVERDRUP_IN_M3_S",
     "TimeDecodingWarning",
+    "UndeclaredFillValueWarning",
     "UnitsError",
     "wind_stress",
     "wind_stress_curl",

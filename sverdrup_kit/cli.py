@@ -9,13 +9,19 @@ is left half-written.
 from __future__ import annotations
 
 import argparse
+import datetime as _dt
 import os
+import shlex
+import signal
 import sys
+import threading
 import time
 import warnings
 from pathlib import Path
 
 import numpy as np
+
+from ._outfolder import OutputFolder
 
 EXIT_USAGE = 2
 
@@ -148,6 +154,9 @@ def _parser() -> argparse.ArgumentParser:
     d.add_argument("--latitudes", type=_latitudes_arg, default=None, metavar="LAT,LAT,...",
                    help="latitudes of the printed summary, degrees_north (default "
                         "-40,-30,-20,20,30,40,50)")
+    d.add_argument("--overwrite", action="store_true",
+                   help="write into a folder that holds files sverdrup-kit did not write "
+                        "(files of the same names are replaced; others are left alone)")
     d.add_argument("--no-progress", action="store_true",
                    help="do not draw a progress bar for computations longer than a second")
     d.add_argument("--quiet", action="store_true", help="print only errors")
@@ -234,6 +243,8 @@ def _spread_parser(sub, drag_laws) -> None:
                    help="a cell is ocean when at least this fraction of it is ocean (default 0.5)")
     s.add_argument("--out", default=None,
                    help="folder for spread.nc and spread.png (default: print the table only)")
+    s.add_argument("--overwrite", action="store_true",
+                   help="write into a folder that holds files sverdrup-kit did not write")
     s.add_argument("--quiet", action="store_true", help="print only the table and errors")
 
 
@@ -245,13 +256,28 @@ def _product_source(text: str):
 
 
 def _run_spread(args) -> int:
+    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
+    # --- output folder: checked before any computation (see sverdrup_kit._outfolder) ---
+    folder = None
+    if args.out is not None:
+        folder = OutputFolder(args.out, task="spread", outputs=("spread.nc", "spread.png"),
+                              overwrite=args.overwrite)
+        folder.prepare()
+    try:
+        return _spread_into(args, folder, say)
+    except BaseException:
+        if folder is not None:
+            folder.abandon()
+        raise
+
+
+def _spread_into(args, folder, say) -> int:
     import xarray as xr
 
-    from . import open_winds
+    from . import __version__, open_winds
     from .io.writers import write_netcdf
     from .spread import spread_table, transport_spread
 
-    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
     laws = [_drag_arg(x.strip()) for x in args.drag_laws.split(",") if x.strip()]
     speeds = [x.strip() for x in args.mean_speed.split(",") if x.strip()]
     sources, names = [], []
@@ -290,21 +316,29 @@ def _run_spread(args) -> int:
         print(f"  {r['basin']:<10s}{latitude_label(r['lat']):>7s}"
               f"{latitude_label(r['grid_lat']):>7s}{r['mean']:8.1f}{r['min']:8.1f}"
               f"{r['max']:8.1f}{r['max'] - r['min']:8.1f}{r['std']:7.1f}{r['count']:4d}  {obs}")
-    if args.out is not None:
-        out = Path(args.out)
-        if out.exists() and not out.is_dir():
-            raise CommandError(f"--out: expected a folder, found a file '{out}'. Fix: pick a "
-                               "folder.")
-        out.mkdir(parents=True, exist_ok=True)
-        say(f"wrote {write_netcdf(res, out / 'spread.nc')}")
+    if folder is not None:
+        # --- provenance and writing: only files the toolkit owns, each whole ---
+        command = _command_line(args)
+        stamp = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+        before = res.attrs.get("history")
+        res = res.assign_attrs(
+            history=f"{stamp} {command}" + (f"\n{before}" if before else ""),
+            source=f"sverdrup_kit {__version__} spread of {', '.join(args.products)}; drag "
+                   f"laws: {args.drag_laws}",
+            command_line=command, sverdrup_kit_version=__version__)
+        folder.reserve(["spread.nc"], command=command, version=__version__)
+        say(f"wrote {write_netcdf(res, folder.path / 'spread.nc')}")
         from .plotting.spread import plot_transport_spread
 
         import matplotlib.pyplot as plt
 
         fig, _ = plot_transport_spread(res, width="page")
-        fig.savefig(out / "spread.png", dpi=150)
+        staged = folder.staging()
+        fig.savefig(staged / "spread.png", dpi=150)
         plt.close(fig)
-        say(f"wrote {out / 'spread.png'}")
+        for p in folder.commit(["spread.nc"], command=command, version=__version__,
+                               staged=staged):
+            say(f"wrote {p}")
     return 0
 
 
@@ -411,13 +445,40 @@ def _adjustment_summary(res, say, lats) -> None:
 
 
 def _run_diagnose(args) -> int:
+    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
+    # --- output folder: checked before any computation (see sverdrup_kit._outfolder) ---
+    local = [] if args.synthetic else [s for s in args.source if "://" not in str(s)]
+    folder = OutputFolder(args.out, overwrite=args.overwrite, inputs=local)
+    folder.prepare()
+    restore = _exit_on_sigterm()
+    try:
+        return _diagnose_into(args, folder, say)
+    except BaseException:
+        folder.abandon()
+        raise
+    finally:
+        restore()
+
+
+def _exit_on_sigterm():
+    """Turn SIGTERM into SystemExit while running, so that half-written files are removed on
+    the way out (SIGKILL cannot be caught: the next run removes those leftovers)."""
+    if threading.current_thread() is not threading.main_thread():
+        return lambda: None
+
+    def terminated(signum, frame):
+        raise SystemExit(128 + signum)
+
+    before = signal.signal(signal.SIGTERM, terminated)
+    return lambda: signal.signal(signal.SIGTERM, before)
+
+
+def _diagnose_into(args, folder, say) -> int:
+    from . import __version__
     from .io.writers import write_netcdf
     from .pipeline import diagnose
 
-    say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
-    out = Path(args.out)
-    if out.exists() and not out.is_dir():
-        raise CommandError(f"--out: expected a folder, found a file '{out}'. Fix: pick a folder.")
+    out = folder.path
     t0 = time.perf_counter()
     if not args.synthetic and not args.source:
         raise CommandError("source: expected a wind file (or --synthetic), found none. Fix: "
@@ -442,12 +503,21 @@ def _run_diagnose(args) -> int:
 
     with progress(enabled=not (args.no_progress or args.quiet)):
         res = res.compute()
-    out.mkdir(parents=True, exist_ok=True)
+    # --- provenance and writing: only files the toolkit owns, each whole ---
+    command = _command_line(args)
+    res = _with_provenance(res, args, command, __version__)
+    folder.reserve(["results.nc"], command=command, version=__version__)
     path = write_netcdf(res, out / "results.nc")
     say(f"wrote {path}")
     _summary(res, say, args.latitudes)
+    staged = None
     if not args.no_figures:
-        _save_figures(res, out, args, say)
+        # Drawn in a hidden staging folder, moved in whole; commit() says what it wrote.
+        staged = folder.staging()
+        _save_figures(res, staged, args, lambda *a: None)
+    for p in folder.commit(["results.nc"], command=command, version=__version__,
+                           staged=staged):
+        say(f"wrote {p}")
     say(f"done in {time.perf_counter() - t0:.1f} s")
     return 0
 
@@ -473,6 +543,28 @@ def _resolve_mask(args, winds, say):
     return mask if mask is not None else "data"
 
 
+def _command_line(args) -> str:
+    argv = getattr(args, "argv", None)
+    return shlex.join(["sverdrup-kit", *(sys.argv[1:] if argv is None else argv)])
+
+
+def _with_provenance(res, args, command: str, version: str):
+    """``res`` with CF ``history`` and ``source``: the input, command line, drag law, version."""
+    src = "the bundled synthetic world" if args.synthetic else ", ".join(
+        str(s if "://" in str(s) else Path(s).resolve()) for s in args.source)
+    stamp = _dt.datetime.now(_dt.timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ")
+    before = res.attrs.get("history")
+    history = f"{stamp} {command}" + (f"\n{before}" if before else "")
+    drag = "none (stress given)" if args.input_kind == "stress" else str(args.drag_law)
+    return res.assign_attrs(
+        history=history,
+        source=f"sverdrup_kit {version} diagnose of {src}; drag law: {drag}",
+        input=src,
+        command_line=command,
+        sverdrup_kit_version=version,
+    )
+
+
 def _warn_one_line(message, category, filename, lineno, file=None, line=None):
     """Show a warning as one line naming its kind, without the source line it came from."""
     print(f"sverdrup-kit: {category.__name__}: {message}", file=sys.stderr if file is None else file)
@@ -481,6 +573,7 @@ def _warn_one_line(message, category, filename, lineno, file=None, line=None):
 def main(argv=None) -> int:
     """Entry point of the ``sverdrup-kit`` command."""
     args = _parser().parse_args(argv)
+    args.argv = None if argv is None else list(argv)
     os.environ.setdefault("MPLBACKEND", "Agg")
     try:
         with warnings.catch_warnings():
@@ -493,7 +586,7 @@ def main(argv=None) -> int:
     except CommandError as err:
         print(f"sverdrup-kit: {err}", file=sys.stderr)
         return EXIT_USAGE
-    except (ValueError, TypeError, KeyError, FileNotFoundError) as err:
+    except (ValueError, TypeError, KeyError, OSError) as err:
         msg = str(err).strip().splitlines()[0] if str(err).strip() else err.__class__.__name__
         print(f"sverdrup-kit: {msg}", file=sys.stderr)
         return EXIT_USAGE

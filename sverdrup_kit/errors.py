@@ -14,6 +14,7 @@ __all__ = [
     "InputError",
     "MonthlyMeanWindWarning",
     "TimeDecodingWarning",
+    "UndeclaredFillValueWarning",
     "UnitsError",
 ]
 
@@ -41,3 +42,8 @@ class TimeDecodingWarning(UserWarning):
 
 class BuiltinOceanMaskWarning(UserWarning):
     """Winds over land were masked with the built-in Earth ocean mask, chosen automatically."""
+
+
+class UndeclaredFillValueWarning(UserWarning):
+    """Values equal to a common fill value (-9999, 1e20, ...) that no attribute declares were
+    taken as missing."""

@@ -1,5 +1,7 @@
 """The batch command: results that reopen, pass a CF sanity check, and one-line errors."""
 
+import json
+import os
 import subprocess
 import sys
 
@@ -109,7 +111,7 @@ def test_chosen_figures_in_pdf_at_column_width(tmp_path):
                  "--figures", "wind_stress_curl_map,interior_transport_by_latitude",
                  "--figure-format", "pdf", "--figure-width", "column"])
     assert code == 0
-    figures = sorted(p.name for p in tmp_path.iterdir() if p.suffix != ".nc")
+    figures = sorted(p.name for p in tmp_path.iterdir() if p.suffix not in (".nc", ".json"))
     assert figures == ["interior_transport_by_latitude.pdf", "wind_stress_curl_map.pdf"]
     # A PDF page is sized in points, 72 to the inch (ISO 32000-1:2008, 8.3.2.3, from memory):
     # a journal column is 3.5 in = 252 pt.
@@ -126,3 +128,204 @@ def test_bad_figure_options_stop_before_any_work(tmp_path, capsys, option):
     assert stop.value.code == 2
     assert option[0] in capsys.readouterr().err
     assert not (tmp_path / "o").exists()
+
+
+# ------------------------------------------------------------------------------------------
+# The output folder: checked first, only the toolkit's own files, provenance recorded
+# ------------------------------------------------------------------------------------------
+
+# The manifest's name is part of the command's interface: users see it in their folder.
+MANIFEST = "sverdrup-kit-manifest.json"
+
+
+@pytest.fixture(scope="module")
+def small_winds(tmp_path_factory):
+    """The synthetic world on a 6-degree grid, two months: a run takes seconds."""
+    from sverdrup_kit.synthetic import load_world
+
+    path = tmp_path_factory.mktemp("winds") / "monthly_winds.nc"
+    load_world()[["u", "v"]].isel(time=[0, 6]).coarsen(lat=3, lon=3).mean().to_netcdf(path)
+    return path
+
+
+def _no_compute(monkeypatch):
+    def fail(*a, **k):
+        raise AssertionError("the diagnosis ran before the output folder was checked")
+
+    monkeypatch.setattr("sverdrup_kit.pipeline.diagnose", fail)
+
+
+def test_out_under_a_file_is_refused_before_computing(small_winds, tmp_path, capsys,
+                                                      monkeypatch):
+    _no_compute(monkeypatch)
+    blocker = tmp_path / "afile.txt"
+    blocker.write_text("x")
+    code = main(["diagnose", str(small_winds), "--out", str(blocker / "sub"), "--quiet"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and err.count("\n") == 0 and err.startswith("sverdrup-kit: --out:")
+    assert blocker.read_text() == "x"
+
+
+@pytest.mark.skipif(os.name != "posix" or os.geteuid() == 0,
+                    reason="permissions do not bind the superuser")
+def test_unwritable_out_is_refused_before_computing(small_winds, tmp_path, capsys, monkeypatch):
+    _no_compute(monkeypatch)
+    locked = tmp_path / "locked"
+    locked.mkdir()
+    locked.chmod(0o500)
+    try:
+        code = main(["diagnose", str(small_winds), "--out", str(locked), "--quiet"])
+    finally:
+        locked.chmod(0o700)
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and err.count("\n") == 0 and "not writable" in err
+
+
+def test_a_users_own_files_are_not_replaced_without_overwrite(small_winds, tmp_path, capsys,
+                                                              monkeypatch):
+    out = tmp_path / "mine"
+    out.mkdir()
+    (out / "results.nc").write_text("my own results")
+    (out / "notes.txt").write_text("my notes")
+    with monkeypatch.context() as m:
+        _no_compute(m)
+        code = main(["diagnose", str(small_winds), "--out", str(out), "--quiet"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and "--overwrite" in err and err.count("\n") == 0
+    assert (out / "results.nc").read_text() == "my own results"
+    assert sorted(p.name for p in out.iterdir()) == ["notes.txt", "results.nc"]
+    code = main(["diagnose", str(small_winds), "--out", str(out), "--quiet", "--no-figures",
+                 "--overwrite"])
+    assert code == 0
+    assert (out / "notes.txt").read_text() == "my notes"  # other files are left alone
+    with xr.open_dataset(out / "results.nc") as ds:
+        assert "interior_transport" in ds
+
+
+@pytest.fixture(scope="module")
+def rerun(small_winds, tmp_path_factory):
+    """A folder left by an earlier run (a figure, a killed write) and a new run into it."""
+    out = tmp_path_factory.mktemp("again")
+    (out / "results.nc").write_text("old results")
+    (out / "streamfunction.png").write_bytes(b"old figure")
+    (out / MANIFEST).write_text(json.dumps({"files": ["results.nc", "streamfunction.png"]}))
+    (out / ".results.nc.k3j9x.part").write_bytes(b"half a file")  # SIGKILL while writing
+    (out / ".sverdrup-kit-staging-a1b2").mkdir()
+    (out / ".sverdrup-kit-staging-a1b2" / "tmpq1.png").write_bytes(b"half a figure")
+    code = main(["diagnose", str(small_winds), "--out", str(out), "--quiet", "--no-figures",
+                 "--drag-law", "trenberth-1990"])
+    assert code == 0
+    return out
+
+
+def test_stale_figures_of_an_earlier_run_are_removed(rerun):
+    assert not (rerun / "streamfunction.png").exists()
+    assert json.loads((rerun / MANIFEST).read_text())["files"] == ["results.nc"]
+
+
+def test_leftovers_of_a_killed_run_are_cleaned(rerun):
+    assert sorted(p.name for p in rerun.iterdir()) == sorted([MANIFEST, "results.nc"])
+
+
+def test_results_record_input_command_drag_law_and_version(rerun, small_winds):
+    from sverdrup_kit import __version__
+
+    with xr.open_dataset(rerun / "results.nc") as ds:
+        history, source = ds.attrs["history"], ds.attrs["source"]
+    assert "sverdrup-kit diagnose" in history and "--drag-law trenberth-1990" in history
+    assert str(small_winds) in source and "trenberth-1990" in source and __version__ in source
+
+
+def test_an_input_in_the_folder_is_never_replaced(rerun, capsys):
+    # Re-diagnosing from the stress of an earlier results.nc into the same folder would
+    # replace the input it reads.
+    before = (rerun / "results.nc").read_bytes()
+    code = main(["diagnose", str(rerun / "results.nc"), "--input-kind", "stress", "--out",
+                 str(rerun), "--quiet", "--no-figures"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and "--out" in err and err.count("\n") == 0
+    assert (rerun / "results.nc").read_bytes() == before
+
+
+_KILLED_MID_WRITE = """
+import os, signal, sys
+import xarray as xr
+from sverdrup_kit.cli import main
+
+real = xr.Dataset.to_netcdf
+def to_netcdf(self, path, *a, **k):
+    with open(path, "wb") as fh:
+        fh.write(b"half a file")
+    os.kill(os.getpid(), signal.SIGTERM)
+    return real(self, path, *a, **k)
+xr.Dataset.to_netcdf = to_netcdf
+sys.exit(main(sys.argv[1:]))
+"""
+
+
+def test_sigterm_while_writing_leaves_no_partial_file(small_winds, tmp_path):
+    out = tmp_path / "o"
+    run = subprocess.run([sys.executable, "-c", _KILLED_MID_WRITE, "diagnose", str(small_winds),
+                          "--out", str(out), "--quiet", "--no-figures"],
+                         capture_output=True, text=True, timeout=300)
+    assert run.returncode in (143, -15)
+    assert not out.exists() or not [p.name for p in out.iterdir() if p.suffix == ".part"]
+
+
+def test_manifest_lists_exactly_the_files_written(synthetic_run):
+    listed = json.loads((synthetic_run / MANIFEST).read_text())["files"]
+    assert sorted(listed) == sorted(p.name for p in synthetic_run.iterdir() if p.name != MANIFEST)
+    assert "results.nc" in listed and any(n.endswith(".png") for n in listed)
+
+
+# ------------------------------------------------------------------------------------------
+# Bad input files through the command: one line, exit 2, nothing written
+# ------------------------------------------------------------------------------------------
+
+
+def test_truncated_file_fails_with_one_line_and_writes_nothing(small_winds, tmp_path, capsys):
+    # netCDF-C reads the lost half of a classic file as zeros: calm winds, land included.
+    whole = tmp_path / "whole.nc"
+    with xr.open_dataset(small_winds) as ds:
+        ds.load().to_netcdf(whole, format="NETCDF3_64BIT", unlimited_dims=["time"])
+    data = whole.read_bytes()
+    cut = tmp_path / "cut.nc"
+    cut.write_bytes(data[: len(data) // 2])
+    out = tmp_path / "o"
+    code = main(["diagnose", str(cut), "--out", str(out), "--quiet"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and err.count("\n") == 0 and "truncated" in err
+    assert not out.exists()
+
+
+def test_implausible_winds_fail_with_one_line(small_winds, tmp_path, capsys):
+    with xr.open_dataset(small_winds) as ds:
+        bad = ds.load()
+    bad["u"][0, 10, 10] = 1e6  # m s-1: beyond any measured wind
+    path = tmp_path / "fast.nc"
+    bad.to_netcdf(path)
+    out = tmp_path / "o"
+    code = main(["diagnose", str(path), "--out", str(out), "--quiet"])
+    err = capsys.readouterr().err.strip()
+    # Warnings (monthly means) come first, each on its line; the error is the last line.
+    assert code == 2 and "Traceback" not in err
+    last = err.splitlines()[-1]
+    assert "u (variable 'u')" in last and "beyond" in last and "1e+06" in last
+    assert "lat=" in last and "lon=" in last
+    assert not out.exists()
+
+
+def test_spread_refuses_a_users_folder_before_computing(small_winds, tmp_path, capsys,
+                                                        monkeypatch):
+    def fail(*a, **k):
+        raise AssertionError("the spread ran before the output folder was checked")
+
+    monkeypatch.setattr("sverdrup_kit.spread.transport_spread", fail)
+    out = tmp_path / "mine"
+    out.mkdir()
+    (out / "spread.nc").write_text("my own spread")
+    code = main(["spread", str(small_winds), "--ocean-mask", "data", "--out", str(out),
+                 "--quiet"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and "--overwrite" in err and err.count("\n") == 0
+    assert (out / "spread.nc").read_text() == "my own spread"

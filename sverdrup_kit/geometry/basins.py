@@ -27,6 +27,7 @@ import xarray as xr
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
+from .. import _validate
 from .coords import GridError, matching_positions, to_canonical
 from .earth import COUNTED, EARTH_SEAS, EXCLUDED
 from .grid import SphericalGrid
@@ -246,14 +247,8 @@ def _mask_on_grid(da, ref, layout, argname):
 
 
 def _as_bool(vals, argname):
-    """True/1 where set; False, 0 and NaN where not."""
-    if vals.dtype.kind not in "biuf":
-        raise TypeError(
-            f"{argname}: expected booleans or numbers (True/1 inside), found dtype "
-            f"{vals.dtype}. Fix: {argname}.astype(bool)."
-        )
-    v = vals.astype(np.float64)
-    return np.where(np.isfinite(v), v, 0.0) != 0.0
+    """True/1 where set; False, 0 and NaN where not (the one mask rule, in _validate)."""
+    return _validate.mask(vals, argname)
 
 
 def _user_basins(basins, water, grid, layout, ref):
@@ -526,6 +521,10 @@ def basin_ids(
     from .coords import from_canonical, require_dataarray
 
     ocean_mask = require_dataarray(ocean_mask, "ocean_mask")
+    island_min_area_km2 = _validate.number(island_min_area_km2, "island_min_area_km2",
+                                           sign="non-negative", units="km2", example=1e5)
+    continent_min_area_km2 = _validate.number(continent_min_area_km2, "continent_min_area_km2",
+                                              sign="non-negative", units="km2", example=5e6)
     grid = SphericalGrid.from_data(ocean_mask, argname="ocean_mask")
     lay = grid.layout
     can = to_canonical(ocean_mask, lay).transpose(lay.lat_name, lay.lon_name)

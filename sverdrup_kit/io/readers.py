@@ -20,8 +20,10 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
-from ..errors import TimeDecodingWarning
+from .. import _validate
+from ..errors import InputError, TimeDecodingWarning
 from ..geometry.coords import GridError, grid_layout, to_canonical
+from ..limits import FILL_SENTINEL
 from .units import KIND, si_factor
 
 __all__ = ["open_winds", "open_stress", "TimeDecodingWarning"]
@@ -106,9 +108,6 @@ STRESS_FIELDS = (
 )
 REQUIRED = {"u", "v", "taux", "tauy"}
 
-# No wind or stress in any accepted unit comes near this; fills seen in real files (-1e34,
-# 9.97e36 for netCDF's default float fill, 1e20 in CMIP output) all lie beyond it.
-FILL_SENTINEL = 1e15
 TIME_NAMES = {"time", "t", "valid_time", "time_counter", "date", "times"}
 LAT_ATTRS = {"units": "degrees_north", "standard_name": "latitude", "long_name": "latitude",
              "axis": "Y"}
@@ -276,6 +275,8 @@ def _as_dataset(source, func, warned) -> tuple[xr.Dataset, bool]:
         isinstance(source, str) and _is_pattern(source)
     ):
         paths = _expand_paths(source, func)
+        for p in paths:
+            _require_whole(p, func)
         if len(paths) == 1 and _is_zarr(paths[0]):
             return _open_zarr(paths[0], func), True
         calendars: dict[str, list[str]] = {}
@@ -304,13 +305,16 @@ def _as_dataset(source, func, warned) -> tuple[xr.Dataset, bool]:
         text = os.fspath(source)
         if "://" not in text:
             _require_file(text, func)
+            _require_whole(text, func)
         try:
             return xr.open_dataset(text, decode_times=False), True
         except (OSError, ValueError) as err:
-            raise ValueError(
+            damaged = "HDF error" in str(err) or "truncated" in str(err).lower()
+            raise InputError(
                 f"{func}: source: expected a netCDF file or a URL xarray can open, could not "
-                f"open {text!r} ({err}). Fix: check the file with ncdump -h, or open it yourself "
-                f"and pass the Dataset."
+                f"open {text!r} ({err})"
+                + (", so the file looks truncated or damaged" if damaged else "")
+                + ". Fix: check the file with ncdump -h, or fetch or copy it again."
             ) from err
     raise TypeError(
         f"{func}: source: expected a path, URL, list of paths or xarray.Dataset"
@@ -409,6 +413,35 @@ def _check_one_calendar(calendars: dict, func) -> None:
 
 def _short(err) -> str:
     return str(err).strip().splitlines()[0][:200] if str(err).strip() else type(err).__name__
+
+
+def _require_whole(path, func) -> None:
+    """Refuse a classic-format netCDF file shorter than its header says (a cut-off copy).
+
+    netCDF-C reads the missing end of such a file as zeros, which would pass for calm winds;
+    scipy's reader maps the variables onto the file and fails when they do not fit.
+    NetCDF-4 (HDF5) files cut short fail to open in netCDF-C already.
+    """
+    if not Path(path).is_file():
+        return  # a Zarr store or a URL
+    with open(path, "rb") as fh:
+        magic = fh.read(4)
+    if magic not in (b"CDF\x01", b"CDF\x02"):
+        return
+    from scipy.io import netcdf_file
+
+    try:
+        nc = netcdf_file(path, "r", mmap=True)
+    except (ValueError, TypeError, OSError):
+        size = os.path.getsize(path)
+        raise InputError(
+            f"{func}: source: expected a whole netCDF file, found that {str(path)!r} ({size} "
+            "bytes) holds less data than its header describes: it looks truncated, e.g. by an "
+            "interrupted download or copy. Fix: fetch or copy the file again."
+        ) from None
+    # The variables' arrays point into the mapped file: drop them so that it closes cleanly.
+    nc.variables.clear()
+    nc.close()
 
 
 def _require_file(path, func) -> None:
@@ -655,7 +688,7 @@ def _unmask(da: xr.DataArray, steps: list[str], label: str) -> xr.DataArray:
     if "scale_factor" in attrs or "add_offset" in attrs:
         out = out * float(attrs.get("scale_factor", 1.0)) + float(attrs.get("add_offset", 0.0))
         steps.append(f"{label}: scale_factor/add_offset in attributes applied")
-    return out.where(np.abs(out) < FILL_SENTINEL)
+    return _validate.fills_to_missing(out, label)
 
 
 def _stress_sign(name, da: xr.DataArray, field: _Field, stress_sign, argname) -> tuple[float, str]:
@@ -711,6 +744,7 @@ def _normalise_field(name, da: xr.DataArray, field: _Field, func: str, steps: li
     out = _unmask(da, steps, field.out)
     if factor != 1.0:
         out = out * factor
+    out = _validate.checked(out, argname, field.kind)
     unit_out = KIND[field.kind][1]
     steps.append(
         f"{field.out}: from variable '{name}' in '{units}'"
@@ -781,8 +815,9 @@ def _assemble(picked, fields, func, described, global_attrs, warned,
         steps.append("longitude reordered to increasing")
     elif not np.array_equal(layout.lon, np.asarray(picked[first][1][layout.lon_name], float)):
         steps.append("longitude unwrapped past the wrap-around to stay increasing")
-    steps.append(f"values below -{FILL_SENTINEL:g} or above {FILL_SENTINEL:g} (fill sentinels) "
-                 "set to NaN; float64")
+    steps.append(f"values below -{FILL_SENTINEL:g} or above {FILL_SENTINEL:g} and the "
+                 "undeclared fills -9999 and -999 set to NaN (with a warning where found); "
+                 "float64")
     if warned:
         # Components and files often share one time axis: say it once.
         message, note = warned[0]

@@ -73,8 +73,9 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 import xarray as xr
 
-from .. import constants
+from .. import _validate, constants
 from .._apply import whole_fields
+from ..errors import InputError
 from ..geometry.coords import check_same_grid, from_canonical, require_dataarray, to_canonical
 from ..geometry.grid import SphericalGrid
 from ..io.units import to_si
@@ -445,12 +446,9 @@ def _land_masses(land, periodic, islands, area, touch) -> np.ndarray:
 
 
 def _check_params(r, A_H, boundary, islands, rotation=None):
-    for name, v in (("r", r), ("A_H", A_H)):
-        if not np.isfinite(v) or v < 0:
-            raise ValueError(
-                f"{name}: expected a friction coefficient >= 0, found {v!r}. Fix: pass e.g. "
-                "r=1e-6 (s-1) for bottom friction or A_H=1e3 (m2 s-1) for lateral friction."
-            )
+    """The friction coefficients as floats, after checking every option."""
+    r = _validate.number(r, "r", sign="non-negative", units="s-1", example=1e-6)
+    A_H = _validate.number(A_H, "A_H", sign="non-negative", units="m2 s-1", example=1e3)
     if r == 0 and A_H == 0:
         raise ValueError(
             "r, A_H: expected some friction, found r=0 and A_H=0; without friction no boundary "
@@ -471,6 +469,7 @@ def _check_params(r, A_H, boundary, islands, rotation=None):
             f"rotation: expected one of {ROTATIONS}, found {rotation!r}. Fix: e.g. "
             "rotation='sphere' (f and beta vary with latitude) or 'beta-plane'."
         )
+    return r, A_H
 
 
 def _island_forcing(op: _Operator, forcing: np.ndarray) -> np.ndarray:
@@ -659,7 +658,12 @@ def solve_basin(
     the boundary layers span a few grid spacings; a warning is raised when a layer is narrower
     than half a spacing.
     """
-    _check_params(r, A_H, boundary, islands)
+    r, A_H = _check_params(r, A_H, boundary, islands)
+    # A negative beta is a sign error (beta > 0 in both hemispheres), not a rotation "none".
+    beta = _validate.number(beta, "beta", sign="non-negative", units="m-1 s-1", example=2e-11)
+    f0 = _validate.number(f0, "f0", sign="any", units="s-1", example=7.3e-5)
+    rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
+    depth = _validate.number(depth, "depth", units="m", example=4000.0)
     x = np.asarray(x, dtype=np.float64)
     y = np.asarray(y, dtype=np.float64)
     for name, c in (("x", x), ("y", y)):
@@ -668,14 +672,22 @@ def solve_basin(
                 f"{name}: expected a strictly increasing 1-D array of at least 3 positions in m, "
                 f"found shape {c.shape}. Fix: pass e.g. {name}=np.linspace(0, 2e6, 101)."
             )
-    c = np.array(curl.values if isinstance(curl, xr.DataArray) else curl, dtype=np.float64)
+    c = np.asarray(curl.values if isinstance(curl, xr.DataArray) else curl)
     if c.shape != (y.size, x.size):
         raise ValueError(
             f"curl: expected shape (ny, nx) = ({y.size}, {x.size}), found {c.shape}. Fix: pass "
             "the curl on the grid of y (rows) and x (columns)."
         )
+    c = _validate.array_field(c, "curl", "curl")
     ocean = _ocean_mask(c, ocean_mask)
     ocean[0, :] = ocean[-1, :] = ocean[:, 0] = ocean[:, -1] = False
+    if not ocean.any():
+        arg = "curl" if ocean_mask is None else "ocean_mask"
+        raise InputError(
+            f"{arg}: expected ocean inside the walls (the first and last rows and columns), "
+            "found no ocean there: the basin is all land. Fix: pass a curl that is finite (or "
+            "an ocean_mask that is True) on the basin's interior points."
+        )
     betas = np.full(y.size, float(beta))
     met = _metrics_cartesian(x, y, betas)
     if beta > 0:
@@ -765,7 +777,7 @@ def _ocean_mask(c, ocean_mask):
             f"ocean_mask: expected the shape of curl {c.shape}, found {m.shape}. Fix: pass a "
             "boolean mask on the same grid (True for ocean)."
         )
-    m = m.astype(bool)
+    m = _validate.mask(m, "ocean_mask")
     bad = m & ~np.isfinite(c)
     if np.any(bad):
         raise ValueError(
@@ -859,13 +871,22 @@ def solve_barotropic(
     >>> out.barotropic_streamfunction.sel(lat=30, method="nearest").max()       # doctest: +SKIP
     """
     curl = require_dataarray(curl, "curl")
-    _check_params(r, A_H, boundary, islands, rotation)
+    r, A_H = _check_params(r, A_H, boundary, islands, rotation)
+    rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
+    depth = _validate.number(depth, "depth", units="m", example=4000.0)
+    radius = _validate.number(radius, "radius", units="m", example=constants.EARTH_RADIUS)
+    if reference_latitude is not None:
+        reference_latitude = _validate.number(reference_latitude, "reference_latitude",
+                                              units="degrees_north", example=30.0,
+                                              low=-90.0, high=90.0)
+    mask_given = ocean_mask is not None
     grid = SphericalGrid.from_data(curl, argname="curl", radius=radius)
     lay = grid.layout
-    c = to_canonical(curl, lay).transpose(..., lay.lat_name, lay.lon_name)
+    c = to_canonical(_validate.field(curl, "curl", "curl"), lay).transpose(
+        ..., lay.lat_name, lay.lon_name)
     if ocean_mask is not None:
         om = to_canonical(require_dataarray(ocean_mask, "ocean_mask"), lay)
-        ocean = np.asarray(om.transpose(lay.lat_name, lay.lon_name).values).astype(bool)
+        ocean = _validate.mask(om.transpose(lay.lat_name, lay.lon_name).values, "ocean_mask")
         if ocean.shape != grid.shape:
             raise ValueError(
                 f"ocean_mask: expected a (lat, lon) mask of shape {grid.shape} like curl, found "
@@ -913,7 +934,8 @@ def solve_barotropic(
         dask="parallelized",
         output_dtypes=[np.float64] * 5,
         dask_gufunc_kwargs={"output_sizes": {"island": op.n_islands}},
-        kwargs=dict(op=op, ocean=ocean, rho0=rho0, beta2d=beta2d),
+        kwargs=dict(op=op, ocean=ocean, rho0=rho0, beta2d=beta2d,
+                    mask_given=mask_given),
         keep_attrs=False,
     )
     psi, U, V, resid = (o.transpose(*order) for o in outs[:4])
@@ -960,7 +982,7 @@ def _island_how(op, ocean, stresses, c, lay):
     return _island_forcing_mixed(op, first, ocean, 1.0)[1]
 
 
-def _solve_kernel(curl, *stress, op, ocean, rho0, beta2d):
+def _solve_kernel(curl, *stress, op, ocean, rho0, beta2d, mask_given=False):
     """psi (m3 s-1), U, V (m2 s-1), the Sverdrup residual (m s-2) and the island constants
     (m3 s-1, last axis) for each field."""
     c = np.asarray(curl, dtype=np.float64)
@@ -971,10 +993,17 @@ def _solve_kernel(curl, *stress, op, ocean, rho0, beta2d):
     islands = np.full((flat.shape[0], op.n_islands), np.nan)
     for k, field in enumerate(flat):
         if not np.all(np.isfinite(field[ocean])):
-            raise ValueError(
+            n = int(np.sum(~np.isfinite(field[ocean])))
+            if mask_given:
+                raise InputError(
+                    f"curl: expected finite values at every ocean point of ocean_mask, found "
+                    f"{n} missing in one field. Fix: fill the curl there, or mark those points "
+                    "as land in ocean_mask."
+                )
+            raise InputError(
                 "curl: expected the same ocean points in every field, found a field missing "
-                f"values at {int(np.sum(~np.isfinite(field[ocean])))} ocean points of the "
-                "first. Fix: pass ocean_mask, or solve the fields separately."
+                f"values at {n} ocean points of the first. Fix: pass ocean_mask (the ocean "
+                "common to every field), or solve the fields separately."
             )
         pair = (st[0][k], st[1][k]) if st else None
         island_forcing, _ = _island_forcing_mixed(op, field, ocean, rho0, pair)
@@ -1097,9 +1126,12 @@ def boundary_current(
     if set(solution["barotropic_streamfunction"].dims) != set(dims):
         raise ValueError(
             f"solution: expected one (row, column) field with dims {dims}, found "
-            f"{solution['streamfunction'].dims}. Fix: select one field, e.g. solution.isel(time=0)."
+            f"{solution['barotropic_streamfunction'].dims}. Fix: select one field, e.g. solution.isel(time=0)."
         )
-    rho0 = solution.attrs.get("rho0", constants.RHO0) if rho0 is None else rho0
+    rho0 = _validate.number(solution.attrs.get("rho0", constants.RHO0) if rho0 is None else rho0,
+                            "rho0", units="kg m-3", example=1025.0)
+    interior_offset = _validate.number(interior_offset, "interior_offset", units="widths",
+                                       example=3.0)
     psi = solution["barotropic_streamfunction"].transpose(*dims).values * constants.SVERDRUP_IN_M3_S
     V = solution["barotropic_northward_transport"].transpose(*dims).values
     v = solution["barotropic_northward_velocity"].transpose(*dims).values

@@ -17,7 +17,7 @@ from __future__ import annotations
 import numpy as np
 import xarray as xr
 
-from .. import constants
+from .. import _validate, constants
 
 __all__ = [
     "stommel_width",
@@ -31,22 +31,15 @@ __all__ = [
 _BOUNDARIES = ("no-slip", "free-slip")
 
 
-def _positive(value, argname: str, what: str, fix: str) -> float:
-    v = float(value)
-    if not np.isfinite(v) or v <= 0:
-        raise ValueError(f"{argname}: expected {what} > 0, found {value!r}. Fix: {fix}")
-    return v
-
-
 def stommel_width(r, beta):
     r"""Width of the Stommel western boundary layer, :math:`\delta_S = r/\beta`, in m.
 
     Parameters
     ----------
     r : float or array_like
-        Linear bottom-friction coefficient acting on the depth-integrated flow, s-1.
+        Linear bottom-friction coefficient acting on the depth-integrated flow, s-1 (> 0).
     beta : float or array_like
-        Meridional gradient of the Coriolis parameter, m-1 s-1.
+        Meridional gradient of the Coriolis parameter, m-1 s-1 (> 0).
 
     Returns
     -------
@@ -58,7 +51,9 @@ def stommel_width(r, beta):
     Stommel, H. (1948). The westward intensification of wind-driven ocean currents. Transactions,
     American Geophysical Union, 29, 202-206.
     """
-    return np.asarray(r, dtype=np.float64) / np.asarray(beta, dtype=np.float64)
+    r = _validate.numbers_array(r, "r", units="s-1", example=1e-6)
+    beta = _validate.numbers_array(beta, "beta", units="m-1 s-1", example=2e-11)
+    return r / beta
 
 
 def munk_width(A_H, beta):
@@ -67,9 +62,9 @@ def munk_width(A_H, beta):
     Parameters
     ----------
     A_H : float or array_like
-        Lateral (horizontal) eddy viscosity, m2 s-1.
+        Lateral (horizontal) eddy viscosity, m2 s-1 (> 0).
     beta : float or array_like
-        Meridional gradient of the Coriolis parameter, m-1 s-1.
+        Meridional gradient of the Coriolis parameter, m-1 s-1 (> 0).
 
     Returns
     -------
@@ -87,7 +82,9 @@ def munk_width(A_H, beta):
     ----------
     Munk, W. H. (1950). On the wind-driven ocean circulation. Journal of Meteorology, 7, 79-93.
     """
-    return np.cbrt(np.asarray(A_H, dtype=np.float64) / np.asarray(beta, dtype=np.float64))
+    A_H = _validate.numbers_array(A_H, "A_H", units="m2 s-1", example=1e3)
+    beta = _validate.numbers_array(beta, "beta", units="m-1 s-1", example=2e-11)
+    return np.cbrt(A_H / beta)
 
 
 def munk_peak_distance(*, boundary: str = "no-slip") -> float:
@@ -172,8 +169,9 @@ def munk_boundary_layer(
     Pedlosky, J. (1996). Ocean Circulation Theory, Springer, section 5.
     """
     _check_boundary(boundary)
-    A_H = _positive(A_H, "A_H", "a lateral viscosity in m2 s-1", "pass e.g. A_H=1e3.")
-    beta = _positive(beta, "beta", "a beta in m-1 s-1", "pass e.g. beta=2e-11 (30N).")
+    A_H = _validate.number(A_H, "A_H", units="m2 s-1", example=1e3)
+    beta = _validate.number(beta, "beta", units="m-1 s-1", example=2e-11)
+    depth = _validate.number(depth, "depth", units="m", example=4000.0)
     x = np.asarray(x, dtype=np.float64)
     if x.ndim != 1 or np.any(x < 0):
         raise ValueError(
@@ -282,12 +280,13 @@ def stommel_basin(
     Stommel, H. (1948). The westward intensification of wind-driven ocean currents. Transactions,
     American Geophysical Union, 29, 202-206.
     """
-    r = _positive(r, "r", "a bottom-friction rate in s-1", "pass e.g. r=1e-6.")
-    if not np.isfinite(beta) or beta < 0:
-        raise ValueError(
-            f"beta: expected a meridional gradient of f >= 0 in m-1 s-1, found {beta!r}. Fix: "
-            "pass e.g. beta=2e-11 (beta is positive in both hemispheres), or 0 for no beta."
-        )
+    r = _validate.number(r, "r", units="s-1", example=1e-6)
+    # beta is positive in both hemispheres; 0 gives a non-rotating or uniformly rotating basin.
+    beta = _validate.number(beta, "beta", sign="non-negative", units="m-1 s-1", example=2e-11)
+    stress_amplitude = _validate.number(stress_amplitude, "stress_amplitude", sign="any",
+                                        units="Pa", example=0.1)
+    rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
+    depth = _validate.number(depth, "depth", units="m", example=4000.0)
     x = np.asarray(x, dtype=np.float64)
     y = np.asarray(y, dtype=np.float64)
     L = float(np.max(x)) if zonal_extent is None else float(zonal_extent)

@@ -5,11 +5,10 @@ from __future__ import annotations
 import numpy as np
 import xarray as xr
 
-from .. import constants
+from .. import _validate, constants
 from ..geometry.coords import check_same_grid, require_dataarray
 from ..geometry.curvilinear import is_curvilinear
 from ..geometry.grid import SphericalGrid
-from ..io.units import to_si
 from .operators import curl_on_sphere
 
 __all__ = ["ekman", "DEFAULT_EQUATORIAL_HALF_WIDTH"]
@@ -55,8 +54,9 @@ def ekman(
     rho0 : float, optional
         Reference sea-water density, kg m-3.
     equatorial_half_width : float, optional
-        Half-width in degrees of the band around the equator that is left missing. Must be
-        positive: at the equator f = 0 and the transports are infinite.
+        Half-width in degrees of the band around the equator that is left missing (>= 0, the
+        rule of :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport` too). A row on the
+        equator itself is always missing: there f = 0 and the Ekman transport is undefined.
     radius, omega : float, optional
         Earth radius (m) and rotation rate (rad s-1).
 
@@ -93,23 +93,24 @@ def ekman(
                                 equatorial_half_width=equatorial_half_width, radius=radius)
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
-    if not np.isfinite(equatorial_half_width) or equatorial_half_width <= 0:
-        raise ValueError(
-            f"equatorial_band: expected a positive half-width in degrees, found "
-            f"{equatorial_half_width!r}. Fix: pass e.g. equatorial_half_width=3.0."
-        )
-    if not rho0 > 0:
-        raise ValueError(f"rho0: expected a positive density in kg m-3, found {rho0!r}.")
+    equatorial_half_width = _validate.number(
+        equatorial_half_width, "equatorial_half_width", sign="non-negative", units="degrees",
+        example=3.0)
+    rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
+    radius = _validate.number(radius, "radius", units="m", example=constants.EARTH_RADIUS)
+    omega = _validate.number(omega, "omega", units="rad s-1", example=constants.OMEGA)
     grid = SphericalGrid.from_data(taux, argname="taux", radius=radius, omega=omega)
     lay = grid.layout
-    tx = to_si(taux, "stress", argname="taux", default="Pa").astype(np.float64)
-    ty = to_si(tauy, "stress", argname="tauy", default="Pa").astype(np.float64)
+    tx = _validate.field(taux, "taux", "stress", default_units="Pa")
+    ty = _validate.field(tauy, "tauy", "stress", default_units="Pa")
 
     # A bare copy of the latitudes: the coordinate's attributes (axis, units) must not reach
     # the transports through the arithmetic.
     lat = xr.DataArray(taux[lay.lat_name].values.astype(np.float64), dims=(lay.lat_name,),
                        coords={lay.lat_name: taux[lay.lat_name]})
-    f = (2.0 * omega * np.sin(np.deg2rad(lat))).where(np.abs(lat) >= equatorial_half_width)
+    # f = 0 on an equator row even with no band: the Ekman transport is undefined there.
+    f = (2.0 * omega * np.sin(np.deg2rad(lat))).where(
+        (np.abs(lat) >= equatorial_half_width) & (lat != 0))
     ue = _bare(ty / (rho0 * f))
     ve = _bare(-tx / (rho0 * f))
     pump = curl_on_sphere(tx / (rho0 * f), ty / (rho0 * f), grid=grid, names=("taux", "tauy"))

@@ -29,11 +29,10 @@ from dataclasses import dataclass
 import numpy as np
 import xarray as xr
 
-from .. import constants
+from .. import _validate, constants
 from .._compiled.stokes import band_sums, stokes_curl, westward_band_scan
 from ..errors import GridError, InputError
 from ..geometry.curvilinear import CurvilinearGrid
-from ..io.units import to_si
 
 __all__ = [
     "model_grid_curl",
@@ -78,6 +77,8 @@ def rotate_to_grid(u_east, u_north, angle):
 def _grid_of(da, argname, grid, radius, omega):
     if grid is not None:
         return grid
+    radius = _validate.number(radius, "radius", units="m", example=constants.EARTH_RADIUS)
+    omega = _validate.number(omega, "omega", units="rad s-1", example=constants.OMEGA)
     return CurvilinearGrid.from_data(da, argname=argname, radius=radius, omega=omega)
 
 
@@ -140,8 +141,8 @@ def model_grid_curl(taux, tauy, *, grid: CurvilinearGrid | None = None,
     next to land and at the grid's edges.
     """
     grid = _grid_of(taux, "taux", grid, radius, constants.OMEGA)
-    tx = to_si(taux, "stress", argname="taux", default="Pa")
-    ty = to_si(tauy, "stress", argname="tauy", default="Pa")
+    tx = _validate.field(taux, "taux", "stress", default_units="Pa")
+    ty = _validate.field(tauy, "tauy", "stress", default_units="Pa")
     curl = _apply(_curl_kernel, tx, ty, grid=grid, argname="taux", kwargs=dict(grid=grid))
     return curl.transpose(*taux.dims).rename("wind_stress_curl").assign_attrs(
         long_name="wind stress curl", units="N m-3",
@@ -161,11 +162,16 @@ def model_grid_ekman(taux, tauy, *, grid=None, rho0: float = constants.RHO0,
     (m s-1, positive upward) with the curl of :func:`model_grid_curl`; missing within
     ``equatorial_half_width`` degrees of the equator, where :math:`1/f` diverges.
     """
+    rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
+    equatorial_half_width = _validate.number(
+        equatorial_half_width, "equatorial_half_width", sign="non-negative", units="degrees",
+        example=3.0)
     grid = _grid_of(taux, "taux", grid, radius, constants.OMEGA)
-    tx = to_si(taux, "stress", argname="taux", default="Pa")
-    ty = to_si(tauy, "stress", argname="tauy", default="Pa")
+    tx = _validate.field(taux, "taux", "stress", default_units="Pa")
+    ty = _validate.field(tauy, "tauy", "stress", default_units="Pa")
     f = xr.DataArray(grid.f, dims=grid.dims)
-    f = f.where(np.abs(xr.DataArray(grid.lat, dims=grid.dims)) >= equatorial_half_width)
+    lat = xr.DataArray(grid.lat, dims=grid.dims)
+    f = f.where((np.abs(lat) >= equatorial_half_width) & (lat != 0))
     ue = (ty / (rho0 * f))
     ve = (-tx / (rho0 * f))
     w = _apply(_curl_kernel, tx / (rho0 * f), ty / (rho0 * f), grid=grid, argname="taux",
@@ -467,12 +473,7 @@ def _ocean_of(taux, tauy, ocean_mask, grid):
                 f"ocean_mask: expected the model grid's shape {grid.shape}, found {vals.shape}. "
                 "Fix: pass the mask of the same grid."
             )
-        if vals.dtype != bool and not np.all(np.isin(vals[np.isfinite(vals)], (0, 1))):
-            raise InputError(
-                "ocean_mask: expected booleans or 0/1, found other values. Fix: "
-                "ocean_mask.astype(bool) after thresholding."
-            )
-        return np.where(np.isfinite(vals), vals, 0).astype(bool)
+        return _validate.mask(vals, "ocean_mask")
     seen = taux.notnull() & tauy.notnull()
     lead = [d for d in seen.dims if d not in grid.dims]
     if lead:
@@ -515,9 +516,17 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
         lat) with ``lat`` the band centres; ``row_status``, ``eastern_coast_lon``,
         ``western_coast_lon`` (basin, lat); ``basin_id`` (y, x).
     """
+    rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
+    equatorial_half_width = _validate.number(
+        equatorial_half_width, "equatorial_half_width", sign="non-negative", units="degrees",
+        example=3.0)
+    min_basin_area_km2 = _validate.number(min_basin_area_km2, "min_basin_area_km2",
+                                          sign="non-negative", units="km2", example=1e5)
+    if band_width is not None:
+        band_width = _validate.number(band_width, "band_width", units="degrees", example=1.0)
     grid = _grid_of(taux, "taux", grid, radius, omega)
-    tx = to_si(taux, "stress", argname="taux", default="Pa")
-    ty = to_si(tauy, "stress", argname="tauy", default="Pa")
+    tx = _validate.field(taux, "taux", "stress", default_units="Pa")
+    ty = _validate.field(tauy, "tauy", "stress", default_units="Pa")
     ocean = _ocean_of(taux, tauy, ocean_mask, grid)
     bid, names = _basins_on_grid(basins, ocean, grid, min_basin_area_km2)
     plan = plan_bands(ocean, bid, len(names), grid, band_width=band_width,
@@ -613,6 +622,10 @@ def model_circulation(u, v, *, thickness=None, depth_dim=None, taux=None, tauy=N
         ``model_interior_transport`` (basin, lat), and with stress also
         ``interior_transport`` (Sverdrup) and ``transport_difference`` (model minus Sverdrup).
     """
+    rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
+    equatorial_half_width = _validate.number(
+        equatorial_half_width, "equatorial_half_width", sign="non-negative", units="degrees",
+        example=3.0)
     grid = _grid_of(u, "u", grid, radius, constants.OMEGA)
     if thickness is not None:
         if depth_dim is None:

@@ -4,13 +4,12 @@ from __future__ import annotations
 
 import xarray as xr
 
-from .. import constants
+from .. import _validate, constants
 from .._apply import apply_grid_kernel
 from .._compiled.dispatch import curl_kernel
 from ..geometry.coords import check_same_grid, from_canonical, require_dataarray, to_canonical
 from ..geometry.curvilinear import is_curvilinear
 from ..geometry.grid import SphericalGrid
-from ..io.units import to_si
 
 __all__ = ["wind_stress_curl", "curl_on_sphere"]
 
@@ -80,8 +79,9 @@ def wind_stress_curl(taux, tauy, *, radius: float = constants.EARTH_RADIUS) -> x
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
     grid = SphericalGrid.from_data(taux, argname="taux", radius=radius)
-    tx = to_si(taux, "stress", argname="taux", default="Pa")
-    ty = to_si(tauy, "stress", argname="tauy", default="Pa")
+    radius = _validate.number(radius, "radius", units="m", example=constants.EARTH_RADIUS)
+    tx = _validate.field(taux, "taux", "stress", default_units="Pa")
+    ty = _validate.field(tauy, "tauy", "stress", default_units="Pa")
     curl = curl_on_sphere(tx, ty, grid=grid, names=("taux", "tauy"))
     return curl.rename("wind_stress_curl").assign_attrs(
         long_name="wind stress curl",

@@ -20,7 +20,7 @@ from types import MappingProxyType
 import numpy as np
 import xarray as xr
 
-from .. import constants
+from .. import _validate, constants
 from .._apply import apply_grid_kernel
 from ..errors import MonthlyMeanWindWarning
 from ..geometry.coords import check_same_grid, require_dataarray
@@ -396,15 +396,9 @@ def _time_mean_reason(*fields: xr.DataArray) -> str | None:
 
 
 def _check_air_density(air_density) -> float:
-    ok = isinstance(air_density, (int, float, np.integer, np.floating)) and not isinstance(
-        air_density, bool
-    )
-    if not ok or not (0.5 < float(air_density) < 2.0):
-        raise ValueError(
-            f"air_density: expected a near-surface air density in kg m-3 (about 1.15 to 1.3), "
-            f"found {air_density!r}. Fix: pass e.g. air_density=1.22."
-        )
-    return float(air_density)
+    # Outside 0.5..2 kg m-3 the value is a typo or another quantity (about 1.15 to 1.3 at sea).
+    return _validate.number(air_density, "air_density", units="kg m-3", example=1.22,
+                            low=0.5, high=2.0)
 
 
 def wind_stress(
@@ -495,8 +489,8 @@ def wind_stress(
     if wind_speed is not None:
         wind_speed = require_dataarray(wind_speed, "wind_speed")
         check_same_grid(u, wind_speed, ("u", "wind_speed"))
-    us = to_si(u, "speed", argname="u", default="m s-1").astype(np.float64)
-    vs = to_si(v, "speed", argname="v", default="m s-1").astype(np.float64)
+    us = _validate.field(u, "u", "speed", default_units="m s-1")
+    vs = _validate.field(v, "v", "speed", default_units="m s-1")
     if wind_speed is None:
         reason = _time_mean_reason(u, v)
         if reason is not None:
@@ -513,7 +507,7 @@ def wind_stress(
         w = np.hypot(us, vs)
         used = "magnitude of the (u, v) given"
     else:
-        w = to_si(wind_speed, "speed", argname="wind_speed", default="m s-1").astype(np.float64)
+        w = _validate.field(wind_speed, "wind_speed", "speed", default_units="m s-1")
         used = "scalar-mean wind speed from the wind_speed argument"
     k = rho * _cd_dataarray(w, law) * w
     taux = (k * us).assign_attrs(

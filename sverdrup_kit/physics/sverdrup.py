@@ -13,7 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 import xarray as xr
 
-from .. import constants
+from .. import _validate, constants
 from .._apply import _bare, apply_grid_kernel, whole_fields
 from .._compiled.dispatch import fill_from_neighbours, westward_scan
 from .._compiled.scan import coverage, gyre_boundaries, sum_groups
@@ -40,7 +40,6 @@ from ..geometry.coords import (
 )
 from ..geometry.curvilinear import is_curvilinear
 from ..geometry.grid import SphericalGrid
-from ..io.units import to_si
 from .ekman import DEFAULT_EQUATORIAL_HALF_WIDTH
 from .operators import curl_on_sphere
 
@@ -99,13 +98,6 @@ def _boundaries_kernel(t, valid, *, lat, max_gyre_boundaries, threshold):
     kw = dict(lat=lat, max_gyre_boundaries=max_gyre_boundaries)
     return (*gyre_boundaries(t, valid, threshold=threshold, **kw),
             *gyre_boundaries(t, valid, threshold=0.0, **kw))
-
-
-def _check_positive(value, name, *, allow_zero=False, fix=""):
-    ok = np.isfinite(value) and (value >= 0 if allow_zero else value > 0)
-    if not ok:
-        what = "a finite number >= 0" if allow_zero else "a finite positive number"
-        raise ValueError(f"{name}: expected {what}, found {value!r}. {fix}".rstrip())
 
 
 def _ocean_from(taux, tauy, ocean_mask, layout):
@@ -326,12 +318,21 @@ def sverdrup_transport(
             rho0=rho0, equatorial_half_width=equatorial_half_width, radius=radius, omega=omega)
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
-    _check_positive(rho0, "rho0", fix="Fix: e.g. rho0=1025.0 (kg m-3).")
-    _check_positive(equatorial_half_width, "equatorial_half_width", allow_zero=True,
-                    fix="Fix: a half-width in degrees, e.g. 3.0.")
-    _check_positive(island_min_area_km2, "island_min_area_km2", allow_zero=True,
-                    fix="Fix: an area in km2, e.g. 1e5; 0 treats every island as large.")
-    _check_positive(min_width_km, "min_width_km", allow_zero=True, fix="Fix: a width in km.")
+    rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
+    equatorial_half_width = _validate.number(
+        equatorial_half_width, "equatorial_half_width", sign="non-negative",
+        units="degrees", example=3.0)
+    island_min_area_km2 = _validate.number(
+        island_min_area_km2, "island_min_area_km2", sign="non-negative", units="km2",
+        example=1e5)
+    continent_min_area_km2 = _validate.number(
+        continent_min_area_km2, "continent_min_area_km2", sign="non-negative", units="km2",
+        example=5e6)
+    min_width_km = _validate.number(min_width_km, "min_width_km", sign="non-negative",
+                                    units="km", example=MIN_WIDTH)
+    radius = _validate.number(radius, "radius", units="m", example=constants.EARTH_RADIUS)
+    omega = _validate.number(omega, "omega", sign="non-negative", units="rad s-1",
+                             example=constants.OMEGA)
     if not (np.isfinite(continent_min_area_km2) and continent_min_area_km2 >= island_min_area_km2):
         raise ValueError(
             f"continent_min_area_km2: expected a number of km2 >= island_min_area_km2 "
@@ -345,8 +346,8 @@ def sverdrup_transport(
     grid0 = SphericalGrid.from_data(taux, argname="taux", radius=radius, omega=omega)
     lay = grid0.layout
     lat, lon = lay.lat_name, lay.lon_name
-    tx = to_canonical(to_si(taux, "stress", argname="taux", default="Pa"), lay)
-    ty = to_canonical(to_si(tauy, "stress", argname="tauy", default="Pa"), lay)
+    tx = to_canonical(_validate.field(taux, "taux", "stress", default_units="Pa"), lay)
+    ty = to_canonical(_validate.field(tauy, "tauy", "stress", default_units="Pa"), lay)
     # Everything below works on the canonical grid, whose layout is the identity.
     ident = GridLayout(lat, lon, lay.lat, lay.lon, np.arange(lay.lat.size),
                        np.arange(lay.lon.size), lay.periodic)

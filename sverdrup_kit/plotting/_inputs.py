@@ -12,6 +12,7 @@ from contextlib import contextmanager
 import numpy as np
 import xarray as xr
 
+from .. import _validate
 from ..geometry.coords import grid_layout, matching_positions, require_dataarray, to_canonical
 
 
@@ -65,7 +66,7 @@ def canonical_2d(da: xr.DataArray, argname: str):
 
 
 def mask_like(mask: xr.DataArray, lat: np.ndarray, lon: np.ndarray, argname: str):
-    """Boolean (lat, lon) array of ``mask`` > 0.5 on a field's canonical grid.
+    """Boolean (lat, lon) array of ``mask`` (booleans or 0/1) on a field's canonical grid.
 
     The mask may use another latitude order or longitude convention; its cells must be the
     field's cells.
@@ -80,7 +81,7 @@ def mask_like(mask: xr.DataArray, lat: np.ndarray, lon: np.ndarray, argname: str
             f"{ml.lat.size} x {ml.lon.size} with other latitudes or longitudes. Fix: pass the "
             "mask of the same grid, e.g. ds['ocean_mask']."
         )
-    return np.asarray(m, dtype=float)[:, cols] > 0.5
+    return _validate.mask(m, argname)[:, cols]
 
 
 def status_info(ds: xr.Dataset):

@@ -11,6 +11,7 @@ import numpy as np
 import pytest
 import xarray as xr
 
+from sverdrup_kit.errors import InputError
 from sverdrup_kit.geometry.coords import GridError
 from sverdrup_kit.io.readers import TimeDecodingWarning, open_stress, open_winds
 from sverdrup_kit.io.units import UnitsError
@@ -519,3 +520,23 @@ def test_real_navy_winds_decode_standard_time(navy_winds):
     assert ds.sizes == {"time": 132, "lat": 73, "lon": 144}
     assert str(ds.time.values[0])[:7] == "1982-01"
     assert ds.lon.values[0] == 20.0 and ds.lon.values[-1] == 377.5
+
+
+# ---------------------------------------------------------------------------------------------
+# Damaged files: a copy cut short must not read as calm winds
+
+
+@pytest.mark.parametrize("fmt, unlimited", [("NETCDF3_64BIT", ["TIME"]), ("NETCDF3_CLASSIC", None),
+                                            ("NETCDF4", None)])
+def test_truncated_file_is_refused_not_read_as_calm_winds(tmp_path, fmt, unlimited):
+    # netCDF-C reads the missing half of a classic file as zeros (calm winds, land included).
+    src = wind_dataset(ntime=6)
+    whole = tmp_path / "whole.nc"
+    src.to_netcdf(whole, format=fmt, unlimited_dims=unlimited)
+    data = whole.read_bytes()
+    cut = tmp_path / "cut.nc"
+    cut.write_bytes(data[: len(data) // 2])
+    with pytest.raises(InputError, match="truncated") as err:
+        open_winds(cut).load()
+    assert "\n" not in str(err.value)
+    assert np.isfinite(open_winds(whole).u.values).any()  # the whole file still opens

@@ -70,7 +70,11 @@ def test_equatorial_band_is_masked_and_recorded():
         assert "equator" in e[name].attrs["comment"]
     assert np.all(np.isfinite(e.ekman_northward_transport.values[~inside]))
     with pytest.raises(ValueError, match="equatorial_half_width"):
-        ekman(tx, 0 * tx, equatorial_half_width=0)
+        ekman(tx, 0 * tx, equatorial_half_width=-1.0)
+    # Zero leaves no band, as in sverdrup_transport (one rule); on the equator f = 0.
+    e0 = ekman(tx, 0 * tx, equatorial_half_width=0)
+    assert np.isnan(e0.ekman_northward_transport.sel(lat=0.0)).all()
+    assert np.isfinite(e0.ekman_northward_transport.sel(lat=1.0)).all()
 
 
 def test_descending_latitude_and_dask_give_the_same_answer():
