@@ -926,7 +926,7 @@ def _run_table(plan, geo, paths):
                 island_of[lab] = k
     lab = geo.land_labels
     if geo.earth:
-        cut, _ = _line_cuts(g, [EARTH_DIVIDING_LINES["indonesia"]])
+        cut, _ = line_cuts(g, [EARTH_DIVIDING_LINES["indonesia"]])
     else:
         cut = np.zeros((ny, nx), dtype=bool)
     kind = np.zeros(n_runs, dtype=np.int8)
