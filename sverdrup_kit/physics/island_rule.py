@@ -29,9 +29,9 @@ face of the island's northernmost cell and the southern face of its southernmost
 eastern coast in each row is the western face of the first land east of the island that is not
 another large island (a continent, or a dividing line that stands for a coast); the western leg
 follows the western faces of the island's westernmost cells. On each face the stress is the
-mean of the two cells beside it; on land, where the stress is missing, ``taux`` is carried in
-from the nearest ocean cell of the same row and ``tauy`` from the same column, so that faces
-along a coast take the ocean's stress.
+mean of the two cells beside it; on land, where the stress is missing, both components are
+carried in from the nearest ocean cell of the same row, so that a zonal face takes the stress
+of its latitude and a meridional face on a coast the stress of the water beside it.
 
 Several islands: the rule is applied island by island. A leg that meets another large island
 crosses it as if it were water (with the stress carried in from the ocean), so the other
@@ -311,6 +311,7 @@ class IslandPath:
     status: int
     rows: tuple  # (jb, jt): southernmost and northernmost island rows
     corners: list  # base path, (J, I) corners with unwrapped I
+    legs: list  # leg (0 north, 1 east, 2 south, 3 west) of each step between corners
     weights: list  # per variant: (Wx, Wy) sparse (4 legs, ny*nx)
     dfs: np.ndarray  # per variant: f_S - f_N
     basin: str
@@ -417,9 +418,7 @@ def _weights(geo, pts, legs):
             length = R * (lat_e[J + 1] - lat_e[J])
             cells = [(J, (I0 - 1) % nx), (J, I0 % nx)]
             tgt = (ry, cy, vy)
-        cells = [(a, b) for a, b in cells if 0 <= a < ny]
-        wet = [(a, b) for a, b in cells if geo.water[a, b]]
-        use = wet or cells
+        use = [(a, b) for a, b in cells if 0 <= a < ny]
         for a, b in use:
             tgt[0].append(leg)
             tgt[1].append(a * nx + b)
@@ -447,7 +446,7 @@ def island_paths(geo: LandGeometry, selection: dict, equatorial_half_width) -> l
                 cols[0] == 0 or cols[-1] == nx - 1)):
             status |= 32
         basin = coast_basin = ""
-        weights, dfs, corners = [], [], []
+        weights, dfs, corners, corner_legs = [], [], [], []
         if not status & 32:
             for dn, ds in _VARIANTS:
                 j_lo, j_hi = jb - ds, jt + dn
@@ -472,7 +471,7 @@ def island_paths(geo: LandGeometry, selection: dict, equatorial_half_width) -> l
                 weights.append(_weights(geo, pts, legs))
                 dfs.append(float(f_e[j_lo] - f_e[j_hi + 1]))
                 if (dn, ds) == (0, 0):
-                    corners = pts
+                    corners, corner_legs = pts, legs
                     status |= flags
                     if len(bodies) > 1:
                         status |= 4
@@ -489,7 +488,7 @@ def island_paths(geo: LandGeometry, selection: dict, equatorial_half_width) -> l
                         status |= 2
         if status & 32:
             weights, dfs = [None] * len(_VARIANTS), [np.nan] * len(_VARIANTS)
-        out.append(IslandPath(name, labs, status, (jb, jt), corners, weights,
+        out.append(IslandPath(name, labs, status, (jb, jt), corners, corner_legs, weights,
                               np.asarray(dfs), basin, coast_basin))
     return out
 
@@ -532,8 +531,10 @@ def _circulation_kernel(tx, ty, *, water, fill_gaps, periodic, Wx, Wy):
     if fill_gaps:
         tx = fill_from_neighbours(tx, target=water, periodic=periodic)
         ty = fill_from_neighbours(ty, target=water, periodic=periodic)
+    # Along the row for both components: a zonal face then takes its row's stress, a
+    # meridional face on a coast the stress of the water beside it.
     tx = _carry_along(tx, -1, periodic)
-    ty = _carry_along(ty, -2, False)
+    ty = _carry_along(ty, -1, periodic)
     lead = tx.shape[:-2]
     fx = tx.reshape(-1, tx.shape[-2] * tx.shape[-1])
     fy = ty.reshape(-1, ty.shape[-2] * ty.shape[-1])
