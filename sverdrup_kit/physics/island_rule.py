@@ -67,7 +67,12 @@ from ..geometry.basins import (
     _as_bool,
     _mask_on_grid,
 )
-from ..geometry.coords import GridLayout, check_same_grid, require_dataarray, to_canonical
+from ..geometry.coords import (
+    GridLayout,
+    check_same_grid,
+    require_dataarray,
+    to_canonical,
+)
 from ..geometry.earth import EARTH_LANDMARKS
 from ..geometry.grid import SphericalGrid, coriolis_parameter
 from ..geometry.integral import SverdrupGeometry, build_geometry
@@ -83,11 +88,11 @@ from ..io.units import to_si
 from .ekman import DEFAULT_EQUATORIAL_HALF_WIDTH
 
 __all__ = [
+    "EARTH_RULE_ISLANDS",
+    "ISLAND_RULE_STATUS",
+    "PASSAGES",
     "island_rule",
     "passage_transport",
-    "EARTH_RULE_ISLANDS",
-    "PASSAGES",
-    "ISLAND_RULE_STATUS",
 ]
 
 SV_UNITS = "1e6 m3 s-1"
@@ -100,6 +105,10 @@ SV_UNITS = "1e6 m3 s-1"
 EARTH_RULE_ISLANDS = {
     "Australia with New Guinea": ("Australia", "New Guinea", "Tasmania"),
 }
+
+#: Landmarks of parts of continents that a coarse grid cuts off through a one-cell neck: land
+#: bodies, not islands, so the rule leaves them out by default.
+EARTH_CONTINENT_PARTS = ("Malay Peninsula", "Central America")
 
 #: Passages whose throughflow is an island transport: the island, the basin the flow leaves
 #: and the basin it enters. Positive from ``from`` to ``to``.
@@ -253,8 +262,9 @@ def default_islands(geo: LandGeometry) -> dict:
             used |= labs
     large = np.unique(geo.land_labels[geo.cls == LARGE_ISLAND])
     for lab in sorted(int(k) for k in large):  # bodies are numbered by decreasing area
-        if lab not in used:
-            out[geo.names_of_land[lab]] = {lab}
+        name = geo.names_of_land[lab]
+        if lab not in used and not (geo.earth and name in EARTH_CONTINENT_PARTS):
+            out[name] = {lab}
     return out
 
 
@@ -1037,7 +1047,6 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
     lat, lon = geo.layout.lat_name, geo.layout.lon_name
     selection = default_islands(geo)
     paths = island_paths(geo, selection, equatorial_half_width) if selection else []
-    ny, nx = geo.grid.shape
     if paths:
         legs = rule_transport(tx, ty, paths, geo, rho0=rho0, fill_gaps=fill_gaps)
         T = legs.isel(variant=0).sum("leg", skipna=False)

@@ -10,7 +10,12 @@ import numpy as np
 import pytest
 import xarray as xr
 
-from sverdrup_kit import island_rule, passage_transport, solve_barotropic, sverdrup_transport
+from sverdrup_kit import (
+    island_rule,
+    passage_transport,
+    solve_barotropic,
+    sverdrup_transport,
+)
 from sverdrup_kit.constants import EARTH_RADIUS as R
 from sverdrup_kit.constants import OMEGA, RHO0
 from sverdrup_kit.errors import InputError
@@ -66,8 +71,8 @@ def test_rectangular_island_under_zonal_wind_has_the_closed_form():
     tx, ty, ocean = box_basin()
     ds = island_rule(tx, ty, ocean_mask=ocean)
     assert ds.sizes["island"] == 1
-    tau = lambda y: -0.1 * np.cos(np.pi * (y - 20) / 30)  # noqa: E731
-    L = lambda y: R * np.cos(np.deg2rad(y)) * np.deg2rad(50.0)  # noqa: E731
+    tau = lambda y: -0.1 * np.cos(np.pi * (y - 20) / 30)
+    L = lambda y: R * np.cos(np.deg2rad(y)) * np.deg2rad(50.0)
     expected = (tau(40) * L(40) - tau(30) * L(30)) / (RHO0 * (f(30) - f(40))) / 1e6
     # The faces take the mean of the two cells beside them: O(dy^2) from tau'' (relative
     # (pi/30 deg)^2 (0.5 deg)^2 / 8, about 3e-4).
@@ -174,7 +179,7 @@ def test_same_island_transport_for_every_longitude_convention_and_latitude_order
 
 def test_chunked_stress_stays_lazy_and_gives_the_same_numbers(world):
     tx, ty, ocean = world
-    stack = lambda a: xr.concat([a, 1.5 * a], "member")  # noqa: E731
+    stack = lambda a: xr.concat([a, 1.5 * a], "member")
     ref = island_rule(stack(tx), stack(ty), ocean_mask=ocean)
     sched = CountingScheduler()
     with dask.config.set(scheduler=sched):
@@ -201,7 +206,7 @@ def test_streamfunction_west_of_the_island_starts_from_the_rules_constant(world)
     name = [str(n) for n in rule.island.values][0]
     T = float(rule.island_transport.sel(island=name))
     assert float(ds.island_transport.sel(island=name)) == pytest.approx(T, rel=1e-12)
-    dxs = lambda la: R * np.cos(np.deg2rad(la)) * np.deg2rad(2.0)  # noqa: E731
+    dxs = lambda la: R * np.cos(np.deg2rad(la)) * np.deg2rad(2.0)
     for la in (-29.0, -25.0, -19.0):
         r = ds.sel(lat=la)
         # Western face of the water west of the island (face at 150E): psi + V dx / 2 = -T.
@@ -229,7 +234,7 @@ def test_streamfunction_west_of_the_island_starts_from_the_rules_constant(world)
 
 
 def test_bad_input_raises_errors_that_name_the_argument(world):
-    tx, ty, ocean = world
+    tx, ty, _ = world
     with pytest.raises(InputError, match="islands: expected names"):
         island_rule(tx, ty, islands=["Atlantis"])
     with pytest.raises(InputError, match="islands: expected a point on land"):

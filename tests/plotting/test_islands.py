@@ -4,13 +4,13 @@ import matplotlib
 
 matplotlib.use("Agg")
 
-import numpy as np  # noqa: E402
-import pytest  # noqa: E402
-import xarray as xr  # noqa: E402
+import numpy as np
+import pytest
+import xarray as xr
 
-from sverdrup_kit import island_rule, sverdrup_transport, wind_stress  # noqa: E402
-from sverdrup_kit.plotting import map_island_rule, plot_island_transports  # noqa: E402
-from sverdrup_kit.synthetic import load_world  # noqa: E402
+from sverdrup_kit import island_rule, sverdrup_transport, wind_stress
+from sverdrup_kit.plotting import map_island_rule, plot_island_transports
+from sverdrup_kit.synthetic import load_world
 
 
 @pytest.fixture(scope="module")
@@ -37,7 +37,7 @@ def test_transports_across_cases_one_marker_each(results):
     _, rule = results
     cases = xr.concat([rule.island_transport, 1.2 * rule.island_transport],
                       xr.DataArray(["a", "b"], dims="product", name="product"))
-    fig, ax = plot_island_transports(cases, reference={str(rule.island.values[0]):
+    _, ax = plot_island_transports(cases, reference={str(rule.island.values[0]):
                                                        (10.0, 2.0, "invented")})
     markers = [line for line in ax.lines if line.get_marker() == "o"]
     assert len(markers) == 2
