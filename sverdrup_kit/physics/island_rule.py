@@ -329,17 +329,21 @@ class IslandPath:
 
 
 def _unwrap_columns(cols, nx, periodic):
-    """Shift so that an island across the periodic seam has contiguous columns."""
+    """First column of the island's span: the column after the widest gap of columns without
+    island cells, so that an island across the periodic seam has contiguous columns. None when
+    the island occupies every column."""
     if not periodic:
         return 0
     occ = np.zeros(nx, dtype=bool)
     occ[np.unique(cols)] = True
     if occ.all():
         return None
-    # Start just after the longest gap.
-    free = np.flatnonzero(~occ)
-    k = free[-1]
-    return int((k + 1) % nx)
+    start = int(np.flatnonzero(occ)[0])
+    free = np.roll(~occ, -start)  # begins on an island column, so no gap wraps round
+    d = np.diff(np.concatenate([[0], free.astype(np.int8), [0]]))
+    a, b = np.flatnonzero(d == 1), np.flatnonzero(d == -1)
+    k = int(np.argmax(b - a))
+    return int((b[k] + start) % nx)
 
 
 def _island_profile(mask, j_lo, j_hi, shift, nx):
@@ -355,8 +359,13 @@ def _island_profile(mask, j_lo, j_hi, shift, nx):
     return W, E
 
 
-def _eastern_coast(geo, labs, j, start, shift):
-    """Unwrapped column of the first coast cell east of ``start`` in row j, flags, coast body."""
+def _eastern_coast(geo, labs, j, start, span_end):
+    """Unwrapped column of the first coast cell east of ``start`` in row j, flags, coast body.
+
+    A dividing line that stands for a coast counts only east of the island's whole span
+    (``span_end``, its easternmost unwrapped column in any row): a strait inside a composite
+    island (Bass Strait inside Australia with Tasmania) is not its eastern coast.
+    """
     g = geo.grid
     nx = g.shape[1]
     flags = 0
@@ -364,7 +373,7 @@ def _eastern_coast(geo, labs, j, start, shift):
         if not g.periodic and i >= nx:
             return None, flags | 16, -1
         c = i % nx
-        if i > start and geo.coast_e[j, (i - 1) % nx]:
+        if i > max(start, span_end + 1) and geo.coast_e[j, (i - 1) % nx]:
             return i, flags, -2
         lab = int(geo.land_labels[j, c])
         if lab in labs:
@@ -379,7 +388,7 @@ def _eastern_coast(geo, labs, j, start, shift):
     return None, flags | 16, -1
 
 
-def _path_corners(W, E, C, j_lo, j_hi):
+def _path_corners(W, C, j_lo, j_hi):
     """Clockwise corners (J, I): north leg, eastern coast, south leg, western coast."""
     pts = [(j_hi + 1, W[j_hi])]
     leg = []
@@ -466,9 +475,10 @@ def island_paths(geo: LandGeometry, selection: dict, equatorial_half_width) -> l
                     dfs.append(np.nan)
                     continue
                 W, E = _island_profile(mask, j_lo, j_hi, shift, nx)
+                span_end = int(((cols - shift) % nx + shift).max())
                 C, bodies, flags = {}, set(), 0
                 for j in range(j_lo, j_hi + 1):
-                    C[j], fl, body = _eastern_coast(geo, labs, j, E[j] + 1, shift)
+                    C[j], fl, body = _eastern_coast(geo, labs, j, E[j] + 1, span_end)
                     flags |= fl
                     bodies.add(body)
                 if flags & 16:
@@ -477,7 +487,7 @@ def island_paths(geo: LandGeometry, selection: dict, equatorial_half_width) -> l
                     if (dn, ds) == (0, 0):
                         status |= 16
                     continue
-                pts, legs = _path_corners(W, E, C, j_lo, j_hi)
+                pts, legs = _path_corners(W, C, j_lo, j_hi)
                 weights.append(_weights(geo, pts, legs))
                 dfs.append(float(f_e[j_lo] - f_e[j_hi + 1]))
                 if (dn, ds) == (0, 0):
@@ -695,6 +705,23 @@ def island_rule(
     current or the equatorial band, where the bottom is not flat under the legs (a ridge east
     of the island), and for islands close to another land mass, whose own circulation the
     rule applied island by island ignores.
+
+    Examples
+    --------
+    An invented closed basin between 0E and 60E, 15N to 55N, with an island from 20E to 30E
+    and 30N to 40N, under easterlies that turn to westerlies:
+
+    >>> import numpy as np, xarray as xr
+    >>> lat, lon = np.arange(-89.0, 90.0, 2.0), np.arange(1.0, 360.0, 2.0)
+    >>> la = lat[:, None] + 0 * lon
+    >>> ocean = (lon < 60) & (la > 15) & (la < 55)
+    >>> ocean &= ~((lon > 20) & (lon < 30) & (la > 30) & (la < 40))
+    >>> tau = -0.1 * np.cos(np.deg2rad(4.5 * (la - 15)))
+    >>> taux = xr.DataArray(np.where(ocean, tau, np.nan), coords={"lat": lat, "lon": lon},
+    ...                     dims=("lat", "lon"), attrs={"units": "Pa"})
+    >>> ds = island_rule(taux, 0 * taux)
+    >>> ds.island_transport.round(1).values.tolist(), ds.north_tip_lat.values.tolist()
+    ([-13.0], [40.0])
 
     References
     ----------

@@ -128,7 +128,7 @@ def test_solver_island_constant_converges_to_the_rule_on_the_isle_of_brenn(world
     # Kelvin-theorem constant tends to the rule's value. The synthetic world sampled to 0.5
     # degree (same coasts), Stommel layer r/beta = 1e-6 / 2.1e-11 = 48 km at 24S against cells
     # of 51 km: resolved to about one cell, thin beside the 1000 km island. Measured: solver
-    # -13.0 Sv, rule -13.2 Sv; -11.4 Sv with r = 2e-6 (a layer twice as wide).
+    # -13.0 Sv, rule -12.9 Sv; -11.4 Sv with r = 2e-6 (a layer twice as wide).
     tx, ty, _ = world
     step = 0.5
     lat = np.arange(-90 + step / 2, 90, step)
@@ -281,8 +281,9 @@ def test_indonesian_throughflow_from_the_marine_climatology(marine_climatology, 
     # 15 Sv (Sprintall et al. 2009, J. Geophys. Res. 114, C07001, INSTANT 2004-06). Accepted:
     # 5 to 20 Sv, Pacific to Indian. This ship climatology has weak westerlies along the
     # southern leg (44S, about 0.04 Pa across the South Pacific), so it sits at the low end.
-    # Measured (monthly scalar-mean speed): 8.6 Sv (Large & Pond 1981), 7.8 Sv (Large &
-    # Yeager 2004); tips moved by a row change it by 1.0 Sv at most.
+    # Measured (monthly scalar-mean speed): 9.1 Sv (Large & Pond 1981), 8.3 Sv (Large &
+    # Yeager 2004); with vector-mean winds 7.2 and 6.6 Sv; tips moved by a row change it by
+    # 0.9 Sv at most.
     st = _coads_stress(marine_climatology, drag_law, use_wind_speed=True)
     mask = _etopo_mask_on(st, etopo60)
     itf = passage_transport(st.taux, st.tauy, passage="indonesian", ocean_mask=mask)
