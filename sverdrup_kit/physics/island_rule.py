@@ -976,7 +976,11 @@ def _run_table(plan, geo, paths):
         qe = ie + 1
         if 0 <= qe < nx or g.periodic:
             qe %= nx
-            if cut[j, ie] and geo.water[j, qe] and run_of[j * nx + qe] >= 0:
+            # A run that ends on open water (the Indonesian line, or the edge of a marginal sea
+            # that the Earth basins leave out) continues the water east of it; the other
+            # coastal lines stand for land the grid misses (Central America, Bass Strait).
+            opens = cut[j, ie] or not geo.coast_e[j, ie]
+            if opens and geo.water[j, qe] and run_of[j * nx + qe] >= 0:
                 kind[r], source[r], across[r] = 2, run_of[j * nx + qe], j * nx + qe
             elif int(lab[j, qe]) in island_of:
                 kind[r], source[r] = 1, island_of[int(lab[j, qe])]
@@ -1066,8 +1070,8 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
 
     Each run of the westward integral that starts on the western coast of a large island
     (or of an island of :data:`EARTH_RULE_ISLANDS`) gets the island's constant from the rule;
-    a run that starts on the Indonesian dividing line continues the streamfunction of the
-    water across the line. Returns the new streamfunction, the boundary current against each
+    a run that starts on open water (the Indonesian dividing line, or the edge of a marginal
+    sea the Earth basins leave out) continues the streamfunction of the water east of it. Returns the new streamfunction, the boundary current against each
     basin row's western coast (..., basin, lat), and a Dataset of the island variables on the
     canonical grid (None without islands).
     """

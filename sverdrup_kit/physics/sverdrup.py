@@ -241,7 +241,8 @@ def sverdrup_transport(
         rule (:func:`~sverdrup_kit.physics.island_rule.island_rule`), so the streamfunction
         west of an island, and in a marginal sea behind it, carries the island's value; with
         ``basins="earth"`` Australia with New Guinea is such an island and the Indonesian
-        dividing line is an open passage (the streamfunction continues across it). Adds
+        dividing line is an open passage (the streamfunction continues across it, as it does
+        into a marginal sea from the open ocean it borders). Adds
         ``island_transport``, ``island_boundary_current_transport``, ``island_rule_status``,
         the tip latitudes and, for Earth basins, ``passage_transport``. ``False``: the
         streamfunction restarts at zero on each island's western coast.
