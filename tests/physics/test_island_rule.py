@@ -316,6 +316,27 @@ def test_indian_ocean_carries_the_throughflow_in_its_streamfunction(marine_clima
     face = float(r.sverdrup_streamfunction.sel(lon=lon_e)
                  + r.sverdrup_northward_transport.sel(lon=lon_e) * dxs / 2 / 1e6)
     assert face == pytest.approx(-itf, abs=1e-9)
+    # A marginal sea behind an island carries the island's constant (derived): the Sea of
+    # Japan's easternmost cell at 39N, against Honshu's western coast.
+    r = ds.sel(lat=39.0)
+    dxs39 = R * np.cos(np.deg2rad(39.0)) * np.deg2rad(2.0)
+    sea = np.isfinite(r.sverdrup_streamfunction) & (r.lon % 360 > 128) & (r.lon % 360 < 142)
+    lon_s = float(r.lon.where(sea).max())
+    face = float(r.sverdrup_streamfunction.sel(lon=lon_s)
+                 + r.sverdrup_northward_transport.sel(lon=lon_s) * dxs39 / 2 / 1e6)
+    assert face == pytest.approx(-float(ds.island_transport.sel(island="Honshu")), abs=1e-9)
+    # Across the Indonesian line the streamfunction is continuous (an open passage): at 9S the
+    # western face of the Pacific-side water equals the eastern face of the Indian Ocean's.
+    r = ds.sel(lat=-9.0)
+    dxs9 = R * np.cos(np.deg2rad(-9.0)) * np.deg2rad(2.0)
+    bid = r.basin_id.values
+    indian, pacific = (list(ds.basin.values).index(b) for b in ("indian", "pacific"))
+    k = next(i for i in range(bid.size - 1) if bid[i] == indian and bid[i + 1] == pacific)
+    psi, v = r.sverdrup_streamfunction.values, r.sverdrup_northward_transport.values
+    east_face = psi[k] + v[k] * dxs9 / 2 / 1e6
+    west_face = psi[k + 1] - v[k + 1] * dxs9 / 2 / 1e6
+    assert east_face == pytest.approx(west_face, abs=1e-9)
+    assert east_face < -5.0  # close to Australia's constant, -itf
     # With the throughflow the Agulhas (boundary current of the Indian Ocean at 30S) is
     # stronger southward than the interior's return flow alone (Godfrey 1989).
     bc = float(ds.boundary_current_transport.sel(basin="indian", lat=-29.0))
