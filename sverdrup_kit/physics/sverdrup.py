@@ -297,7 +297,10 @@ def sverdrup_transport(
     western cell, :math:`\psi_w - V_w\Delta x_w/2`, is :math:`-T` of that run. A basin row
     made of several runs (split by large islands) restarts at zero on each run's eastern
     coast; its interior transport is the sum over its runs, and the western boundary current
-    carries it back: ``boundary_current_transport = -interior_transport``.
+    carries it back: ``boundary_current_transport = -interior_transport``. That is the scan
+    (``island_rule=False``); with the island rule each run then adds the constant of the land
+    east of it (Godfrey 1989; :mod:`sverdrup_kit.physics.island_rule`), and the return flow is
+    split between the continent and the islands of the row.
 
     In each basin row the widest run is the open basin; runs joined to it across large
     islands only are counted with it, runs cut off by a continent are marginal seas. A row is
