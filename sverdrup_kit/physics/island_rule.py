@@ -1143,11 +1143,22 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
 
 
 def add_island_variables(ds, basin_bc, islands, lat):
-    """Put the island rule's results into a Sverdrup result (in the user's latitude order)."""
-    order = ds[lat]
-    bc = basin_bc.assign_coords({lat: basin_bc[lat]}).sel({lat: order})
+    """Put the island rule's results into a Sverdrup result (in the user's latitude order).
+
+    The new variables go in as plain variables on the result's own coordinates, so that the
+    coordinates keep their attributes.
+    """
+    order = ds[lat].values
+
+    def on_ds(da):
+        if lat in da.dims:
+            da = da.assign_coords({lat: da[lat].values}).sel({lat: order})
+        return da.drop_vars([c for c in da.coords if c in (lat, "basin")]).variable
+
     ds = ds.copy()
-    ds["boundary_current_transport"] = bc.transpose(*ds.boundary_current_transport.dims).assign_attrs(
+    bc = basin_bc.transpose(*ds.boundary_current_transport.dims)
+    ds["boundary_current_transport"] = on_ds(bc).copy(deep=False)
+    ds["boundary_current_transport"].attrs = dict(
         long_name="western boundary current against the western coast of the basin",
         units=SV_UNITS,
         comment="northward: streamfunction at the western face of the westernmost interior "
@@ -1160,10 +1171,13 @@ def add_island_variables(ds, basin_bc, islands, lat):
             "restarts at zero west of each large island", "west of a large island it starts "
             "from the island's constant from Godfrey's island rule (island_transport)"))
     if islands is not None:
-        islands = islands.assign_coords({lat: islands[lat]}) if lat in islands.dims else islands
-        if lat in islands.dims:
-            islands = islands.sel({lat: order})
-        ds = ds.merge(islands)
+        ds = ds.assign_coords(island=islands["island"])
+        for name, da in islands.data_vars.items():
+            lead = [d for d in da.dims if d not in ("island", "passage", lat)]
+            core = [d for d in ("island", "passage", lat) if d in da.dims]
+            ds[name] = on_ds(da.transpose(*lead, *core))
+        if "passage" in islands.coords:
+            ds = ds.assign_coords(passage=islands["passage"])
     ds.attrs["island_rule"] = ("Godfrey (1989): island constants of the streamfunction from "
                                "the island rule, applied island by island")
     return ds
