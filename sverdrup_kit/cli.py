@@ -43,6 +43,62 @@ def latitude_label(lat: float, decimals: int = 1) -> str:
     return text + ("N" if lat > 0 else "S")
 
 
+# --- figure options ------------------------------------------------------------------------------
+#: Names of the standard figures (sverdrup_kit.plotting.STANDARD_FIGURES; a test keeps the two
+#: equal), listed here so that --help does not import matplotlib and cartopy.
+FIGURE_NAMES = ("wind_stress_map", "wind_stress_curl_map", "ekman_pumping_map",
+                "sverdrup_streamfunction_map", "interior_transport_by_latitude",
+                "interior_transport_by_time", "rossby_crossing_time_by_latitude")
+
+
+def _figure_width_arg(text: str):
+    if text in ("column", "page"):
+        return text
+    try:
+        inches = float(text)
+    except ValueError:
+        inches = float("nan")
+    if not 1.0 <= inches <= 20.0:
+        raise argparse.ArgumentTypeError(
+            f"expected 'column' (3.5 in), 'page' (7.2 in) or inches from 1 to 20, found '{text}'")
+    return inches
+
+
+def _figure_names_arg(text: str) -> list[str]:
+    names = [n.strip() for n in text.split(",") if n.strip()]
+    unknown = [n for n in names if n not in FIGURE_NAMES]
+    if unknown or not names:
+        raise argparse.ArgumentTypeError(
+            f"expected names among {', '.join(FIGURE_NAMES)}, found '{text}'")
+    return names
+
+
+def _add_figure_options(d: argparse.ArgumentParser) -> None:
+    g = d.add_argument_group("figures")
+    g.add_argument("--no-figures", action="store_true", help="write the NetCDF only")
+    g.add_argument("--figures", type=_figure_names_arg, default=None, metavar="NAME[,NAME]",
+                   help="which figures to draw (default: all the results allow): "
+                        + ", ".join(FIGURE_NAMES))
+    g.add_argument("--figure-format", choices=("png", "pdf", "svg"), default="png",
+                   help="file format of the figures (default: png)")
+    g.add_argument("--figure-width", type=_figure_width_arg, default="page",
+                   metavar="column|page|INCHES",
+                   help="figure width: a journal column (3.5 in), a page (7.2 in) or inches "
+                        "(default: page)")
+    g.add_argument("--figure-dpi", type=int, default=200, metavar="DPI",
+                   help="resolution of PNG figures and of the colour meshes in PDF and SVG "
+                        "(default: 200)")
+
+
+def _save_figures(res, out: Path, args, say) -> None:
+    from .plotting import save_standard_figures
+
+    for p in save_standard_figures(res, out, figures=args.figures, width=args.figure_width,
+                                   dpi=args.figure_dpi, fmt=args.figure_format):
+        say(f"wrote {p}")
+# --- end of figure options ----------------------------------------------------------------------
+
+
 def _parser() -> argparse.ArgumentParser:
     from .physics.stress import DRAG_LAWS
 
@@ -92,10 +148,10 @@ def _parser() -> argparse.ArgumentParser:
     d.add_argument("--latitudes", type=_latitudes_arg, default=None, metavar="LAT,LAT,...",
                    help="latitudes of the printed summary, degrees_north (default "
                         "-40,-30,-20,20,30,40,50)")
-    d.add_argument("--no-figures", action="store_true", help="write the NetCDF only")
     d.add_argument("--no-progress", action="store_true",
                    help="do not draw a progress bar for computations longer than a second")
     d.add_argument("--quiet", action="store_true", help="print only errors")
+    _add_figure_options(d)
     _spread_parser(sub, DRAG_LAWS)
     return p
 
@@ -391,10 +447,7 @@ def _run_diagnose(args) -> int:
     say(f"wrote {path}")
     _summary(res, say, args.latitudes)
     if not args.no_figures:
-        from .plotting.figures import save_standard_figures
-
-        for p in save_standard_figures(res, out):
-            say(f"wrote {p}")
+        _save_figures(res, out, args, say)
     say(f"done in {time.perf_counter() - t0:.1f} s")
     return 0
 

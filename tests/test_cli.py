@@ -88,3 +88,41 @@ def test_real_climatology_runs_and_warnings_are_one_line(marine_climatology, tmp
     err = [line for line in captured.err.splitlines() if line.strip()]
     assert len(err) == 1 and err[0].startswith("sverdrup-kit: TimeDecodingWarning:"), err
     assert "atlantic" in captured.out and "pacific" in captured.out
+
+
+# --- figure options ------------------------------------------------------------------------------
+
+
+def test_figure_names_in_help_are_the_standard_figures(capsys):
+    from sverdrup_kit.cli import FIGURE_NAMES
+    from sverdrup_kit.plotting import STANDARD_FIGURES
+
+    assert list(FIGURE_NAMES) == list(STANDARD_FIGURES)
+    with pytest.raises(SystemExit):
+        main(["diagnose", "--help"])
+    help_text = " ".join(capsys.readouterr().out.split())
+    assert all(name in help_text for name in FIGURE_NAMES)
+
+
+def test_chosen_figures_in_pdf_at_column_width(tmp_path):
+    code = main(["diagnose", "--synthetic", "--out", str(tmp_path), "--quiet",
+                 "--figures", "wind_stress_curl_map,interior_transport_by_latitude",
+                 "--figure-format", "pdf", "--figure-width", "column"])
+    assert code == 0
+    figures = sorted(p.name for p in tmp_path.iterdir() if p.suffix != ".nc")
+    assert figures == ["interior_transport_by_latitude.pdf", "wind_stress_curl_map.pdf"]
+    # A PDF page is sized in points, 72 to the inch (ISO 32000-1:2008, 8.3.2.3, from memory):
+    # a journal column is 3.5 in = 252 pt.
+    head = (tmp_path / "wind_stress_curl_map.pdf").read_bytes()
+    width = float(head.split(b"/MediaBox [")[1].split()[2])
+    assert width == pytest.approx(252.0, abs=0.5)
+
+
+@pytest.mark.parametrize("option", [["--figures", "transport"], ["--figure-width", "poster"],
+                                    ["--figure-format", "jpeg"]])
+def test_bad_figure_options_stop_before_any_work(tmp_path, capsys, option):
+    with pytest.raises(SystemExit) as stop:
+        main(["diagnose", "--synthetic", "--out", str(tmp_path / "o"), *option])
+    assert stop.value.code == 2
+    assert option[0] in capsys.readouterr().err
+    assert not (tmp_path / "o").exists()

@@ -1,8 +1,8 @@
 """Figures of the Rossby-wave adjustment: crossing times, adjusted rows, the lagged response.
 
-Same conventions as :mod:`sverdrup_kit.plotting.figures` (print widths, fonts set on each
-figure, units from the data, rows where the Sverdrup relation is not expected shaded and
-named).
+Same conventions as the other figures (:mod:`sverdrup_kit.plotting.maps`: print widths, fonts
+set on each figure, units from the data, rows where the Sverdrup relation is not expected
+shaded and named).
 """
 
 from __future__ import annotations
@@ -16,18 +16,16 @@ from matplotlib import ticker as mticker
 from matplotlib import transforms as mtransforms
 
 from ..geometry.coords import require_dataarray
-from .figures import (
-    _SKIP_REASONS,
-    _as_display,
-    _figure_width,
-    _fonts,
-    _lat_formatter,
-    _rc,
-    _reason_style,
-    _runs,
-    _status_info,
-    _style,
-)
+from ._inputs import runs as _runs
+from ._inputs import status_info as _status_info
+from ._style import SKIP_REASONS as _SKIP_REASONS
+from ._style import as_display as _as_display
+from ._style import figure_width as _figure_width
+from ._style import fonts as _fonts
+from ._style import latitude_formatter as _lat_formatter
+from ._style import rc as _rc
+from ._style import reason_style as _reason_style
+from ._style import style_axes as _style
 
 __all__ = ["plot_crossing_time", "plot_lagged_transport", "mark_adjusted_rows"]
 

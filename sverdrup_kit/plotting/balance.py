@@ -8,7 +8,12 @@ import numpy as np
 import xarray as xr
 from matplotlib import ticker as mticker
 
-from .figures import _figure_width, _fonts, _lat_formatter, _rc, _runs, _style
+from ._inputs import runs as _runs
+from ._style import figure_width as _figure_width
+from ._style import fonts as _fonts
+from ._style import latitude_formatter as _lat_formatter
+from ._style import rc as _rc
+from ._style import style_axes as _style
 
 __all__ = ["plot_balance"]
 

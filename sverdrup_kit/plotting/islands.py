@@ -8,7 +8,8 @@ import matplotlib.pyplot as plt
 import numpy as np
 import xarray as xr
 
-from .figures import _figure_width, _fonts, _rc, _style, map_streamfunction
+from ._style import figure_width, fonts, rc, style_axes
+from .maps import map_sverdrup_streamfunction
 
 __all__ = ["map_island_rule", "plot_island_transports"]
 
@@ -30,7 +31,7 @@ def map_island_rule(data, rule=None, *, islands=None, time="mean", width="page",
     islands : list of str, optional
         Islands to draw (default: every island of ``rule`` whose rule was not refused).
     time, width, projection, coastlines, title, robust, vmax
-        As in :func:`~sverdrup_kit.plotting.map_streamfunction`.
+        As in :func:`~sverdrup_kit.plotting.map_sverdrup_streamfunction`.
 
     Returns
     -------
@@ -52,9 +53,9 @@ def map_island_rule(data, rule=None, *, islands=None, time="mean", width="page",
     if unknown:
         raise ValueError(f"islands: expected names from rule.island {names}, found {unknown}. "
                          "Fix: pick from rule.island.values.")
-    fig, ax = map_streamfunction(data, time=time, width=width, projection=projection,
+    fig, ax = map_sverdrup_streamfunction(data, time=time, width=width, projection=projection,
                                  coastlines=coastlines, title=title, robust=robust, vmax=vmax)
-    fs = _fonts(_figure_width(width))
+    fs = fonts(figure_width(width))
     for n in islands:
         plat = rule.path_lat.sel(island=n).values
         plon = rule.path_lon.sel(island=n).values
@@ -118,10 +119,10 @@ def plot_island_transports(data, *, reference=None, width="column", title=None):
             labels.append(", ".join(str(v) for v in vals))
         else:
             labels.append("")
-    w = _figure_width(width)
-    fs = _fonts(w)
+    w = figure_width(width)
+    fs = fonts(w)
     n, m = len(names), flat.sizes["_case"]
-    with mpl.rc_context(_rc(fs)):
+    with mpl.rc_context(rc(fs)):
         fig, ax = plt.subplots(figsize=(w, 0.6 + 0.32 * n * max(1, min(m, 4)) ** 0.5 + 0.25 * m),
                                layout="constrained")
         colors = plt.get_cmap("tab10")
@@ -148,7 +149,7 @@ def plot_island_transports(data, *, reference=None, width="column", title=None):
         what = "throughflow" if dim == "passage" else "island transport"
         ax.set_xlabel(f"{what} (Sv{'' if units in ('1e6 m3 s-1', 'sverdrup') else ', ' + units})"
                       + (", positive northward" if dim == "island" else ""))
-        _style(ax, fs)
+        style_axes(ax, fs)
         if any(labels) or refs:
             fig.legend(loc="outside lower center", frameon=False, fontsize=fs["small"],
                       ncols=1 if max(len(t) for t in labels + [""]) > 24 or w < 4 else 2,

@@ -10,7 +10,11 @@ import numpy as np
 import xarray as xr
 from matplotlib import ticker as mticker
 
-from .figures import _figure_width, _fonts, _lat_formatter, _rc, _style
+from ._style import figure_width as _figure_width
+from ._style import fonts as _fonts
+from ._style import latitude_formatter as _lat_formatter
+from ._style import rc as _rc
+from ._style import style_axes as _style
 
 __all__ = ["plot_transport_spread"]
 

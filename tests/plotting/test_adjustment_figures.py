@@ -46,10 +46,10 @@ def test_crossing_time_figure_draws_every_time_scale(strict, tmp_path, res):
         plotting.plot_crossing_time(res[["interior_transport"]])
 
 
-def test_hovmoller_marks_the_rows_that_did_not_adjust(strict, res):
+def test_latitude_time_marks_the_rows_that_did_not_adjust(strict, res):
     flags = res.sverdrup_adjusted.sel(time_scale="annual")
-    fig, axes = plotting.plot_hovmoller(res.interior_transport_by_time, adjusted=flags,
-                                        width="page")
+    fig, axes = plotting.plot_latitude_time(res.interior_transport_by_time, adjusted=flags,
+                                            width="page")
     labels = [t.get_text() for t in fig.legends[0].get_texts()]
     assert "adjusted within the time step" in labels
     assert "not adjusted (Rossby waves still crossing)" in labels
