@@ -51,6 +51,7 @@ from .physics.boundary_layers import (
     stommel_width,
 )
 from .physics.ekman import ekman
+from .physics.island_rule import island_rule, passage_transport
 from .physics.model_grid import model_circulation, rotate_to_geographic, rotate_to_grid
 from .physics.operators import curl_on_sphere, wind_stress_curl
 from .physics.stress import DRAG_LAWS, DragLaw, drag_coefficient, wind_stress
@@ -96,6 +97,7 @@ __all__ = [
     "model_circulation",
     "GridError",
     "InputError",
+    "island_rule",
     "LinearEquationOfState",
     "MonthlyMeanWindWarning",
     "munk_boundary_layer",
@@ -106,6 +108,7 @@ __all__ = [
     "open_results",
     "open_stress",
     "open_winds",
+    "passage_transport",
     "RHO0",
     "rotate_to_geographic",
     "rotate_to_grid",

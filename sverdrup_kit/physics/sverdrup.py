@@ -41,6 +41,7 @@ from ..geometry.coords import (
 from ..geometry.curvilinear import is_curvilinear
 from ..geometry.grid import SphericalGrid
 from .ekman import DEFAULT_EQUATORIAL_HALF_WIDTH
+from .island_rule import add_island_variables, land_geometry_from, sverdrup_island_constants
 from .operators import curl_on_sphere
 
 __all__ = ["sverdrup_transport"]
@@ -131,6 +132,7 @@ def sverdrup_transport(
     relief=None,
     shelf_depth_m: float = 1000.0,
     geometry: SverdrupGeometry | None = None,
+    island_rule: bool = True,
     radius: float = constants.EARTH_RADIUS,
     omega: float = constants.OMEGA,
 ) -> xr.Dataset:
@@ -226,6 +228,16 @@ def sverdrup_transport(
         From :func:`~sverdrup_kit.geometry.integral.sverdrup_geometry` on this grid; skips
         the geometry step (the options it was built with apply). Without it the geometry is
         built, or taken from an in-memory cache keyed on grid, mask and options.
+    island_rule : bool, optional
+        ``True``: each large island's streamfunction constant comes from Godfrey's island
+        rule (:func:`~sverdrup_kit.physics.island_rule.island_rule`), so the streamfunction
+        west of an island, and in a marginal sea behind it, carries the island's value; with
+        ``basins="earth"`` Australia with New Guinea is such an island and the Indonesian
+        dividing line is an open passage (the streamfunction continues across it, as it does
+        into a marginal sea from the open ocean it borders). Adds
+        ``island_transport``, ``island_boundary_current_transport``, ``island_rule_status``,
+        the tip latitudes and, for Earth basins, ``passage_transport``. ``False``: the
+        streamfunction restarts at zero on each island's western coast.
     radius, omega : float, optional
         Earth radius (m) and rotation rate (rad s-1).
 
@@ -277,7 +289,10 @@ def sverdrup_transport(
     western cell, :math:`\psi_w - V_w\Delta x_w/2`, is :math:`-T` of that run. A basin row
     made of several runs (split by large islands) restarts at zero on each run's eastern
     coast; its interior transport is the sum over its runs, and the western boundary current
-    carries it back: ``boundary_current_transport = -interior_transport``.
+    carries it back: ``boundary_current_transport = -interior_transport``. That is the scan
+    (``island_rule=False``); with the island rule each run then adds the constant of the land
+    east of it (Godfrey 1989; :mod:`sverdrup_kit.physics.island_rule`), and the return flow is
+    split between the continent and the islands of the row.
 
     In each basin row the widest run is the open basin; runs joined to it across large
     islands only are counted with it, runs cut off by a continent are marginal seas. A row is
@@ -428,13 +443,22 @@ def sverdrup_transport(
                     threshold=gyre_threshold_sv),
     )
 
+    basin_bc = islands = None
+    if island_rule:
+        geo = land_geometry_from(geometry, lay)
+        psi, basin_bc, islands = sverdrup_island_constants(
+            tx, ty, psi, v, transport, geo=geo, plan=plan, rho0=rho0, fill_gaps=fill_gaps,
+            equatorial_half_width=equatorial_half_width)
     settings = _Settings(rho0, equatorial_half_width, island_min_area_km2, continent_min_area_km2,
                          min_width_km, fill_gaps,
                          given_mask=ocean_mask is not None or mask_from_geometry)
     fields = dict(curl=curl, v=v, psi=psi, transport=transport, crossings=crossings, count=count)
     ds = _assemble(fields, plan, bid, names, lay, taux, settings)
-    return _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, taux,
-                        tx, gyre_threshold_sv=gyre_threshold_sv)
+    ds = _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, taux,
+                      tx, gyre_threshold_sv=gyre_threshold_sv)
+    if island_rule:
+        ds = add_island_variables(ds, basin_bc, islands, lat)
+    return ds
 
 
 @dataclass(frozen=True)

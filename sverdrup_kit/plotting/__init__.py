@@ -10,6 +10,7 @@ cartopy and matplotlib cost about a second to import.
 - :mod:`.balance`: Sverdrup transport against hydrographic sections;
 - :mod:`.model_grid`: ocean-model transports against the Sverdrup transport;
 - :mod:`.spread`: the spread of transports across wind products and drag laws;
+- :mod:`.islands`: Godfrey's island rule: island and throughflow transports, paths on a map;
 - :mod:`.figure_set`: the standard figures of a diagnosis, as the command line writes them.
 
 Private modules hold what they share: ``_style`` (sizes, fonts, colours, unit labels),
@@ -26,6 +27,7 @@ from .figure_set import (
     available_figures,
     save_standard_figures,
 )
+from .islands import map_island_rule, plot_island_transports
 from .maps import (
     map_ekman_pumping,
     map_field,
@@ -47,6 +49,7 @@ __all__ = [
     "map_wind_stress_curl",
     "map_ekman_pumping",
     "map_sverdrup_streamfunction",
+    "map_island_rule",
     "mark_adjusted_rows",
     "plot_balance",
     "plot_crossing_time",
@@ -54,6 +57,7 @@ __all__ = [
     "plot_transport_spread",
     "plot_model_vs_sverdrup",
     "plot_interior_transport",
+    "plot_island_transports",
     "plot_latitude_time",
     "available_figures",
     "save_standard_figures",

@@ -293,7 +293,8 @@ def test_marine_climatology_on_a_rotated_model_grid(marine_climatology):
         winds = sk.open_winds(str(marine_climatology))
     st = sk.wind_stress(winds.u, winds.v, drag_law="large-pond-1981", wind_speed=winds.wind_speed)
     tx, ty = st.taux.mean("time").compute(), st.tauy.mean("time").compute()
-    reg = sk.sverdrup_transport(tx, ty, basins="earth").compute()
+    # Island constants (Godfrey's rule) are not applied on model grids: compare the scans.
+    reg = sk.sverdrup_transport(tx, ty, basins="earth", island_rule=False).compute()
     lat, lon, _, _ = rotated_pole_grid(1.0, pole_lat=50.0, pole_lon=160.0)
     lon0 = float(tx.lon.min())
     at = dict(lat=xr.DataArray(lat, dims=("y", "x")),
