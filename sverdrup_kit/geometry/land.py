@@ -295,7 +295,7 @@ def island_table(ocean_mask, *, island_min_area_km2: float = ISLAND_MIN_AREA,
     ([35.0], [27.0])
     """
     from .basins import _as_bool
-    from .coords import from_canonical, require_dataarray, to_canonical
+    from .coords import require_dataarray, to_canonical
 
     ocean_mask = require_dataarray(ocean_mask, "ocean_mask")
     grid = SphericalGrid.from_data(ocean_mask, argname="ocean_mask")

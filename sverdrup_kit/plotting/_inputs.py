@@ -102,6 +102,23 @@ def basin_names(ds: xr.Dataset) -> list[str]:
     return [str(b) for b in ds["basin"].values]
 
 
+def choose_basins(field: xr.DataArray, basins) -> list[str]:
+    """The basins a figure draws: ``basins`` checked against the names along ``field``'s
+    ``basin`` dimension, or every basin with at least one value (a basin with no valid row,
+    such as a circumpolar channel, would be an empty panel)."""
+    names = [str(b) for b in field["basin"].values]
+    if basins is None:
+        has = field.notnull().any([d for d in field.dims if d != "basin"]).values
+        chosen = [n for n, ok in zip(names, has) if ok]
+    else:
+        chosen = [str(b) for b in basins]
+    unknown = [b for b in chosen if b not in names]
+    if unknown or not chosen:
+        raise ValueError(f"basins: expected names among {names}, found {chosen}. "
+                         "Fix: pass some of those names or None for all.")
+    return chosen
+
+
 def runs(flags: np.ndarray):
     """Start and end indices of runs of True."""
     padded = np.concatenate([[False], flags, [False]])

@@ -16,6 +16,7 @@ from matplotlib import ticker as mticker
 from matplotlib import transforms as mtransforms
 
 from ..geometry.coords import require_dataarray
+from ._inputs import choose_basins
 from ._inputs import runs as _runs
 from ._inputs import status_info as _status_info
 from ._style import SKIP_REASONS as _SKIP_REASONS
@@ -74,16 +75,7 @@ def plot_crossing_time(data, *, basins=None, width="column", title=None):
     _need(data, ("basin_crossing_time",), "data",
           "pass the result of sverdrup_kit.diagnose, or merge rossby_adjustment's result.")
     ct = data["basin_crossing_time"] / DAYS_PER_YEAR
-    names = [str(b) for b in ct["basin"].values]
-    if basins is None:
-        has = ct.notnull().any([d for d in ct.dims if d != "basin"]).values
-        chosen = [n for n, ok in zip(names, has) if ok]
-    else:
-        chosen = list(basins)
-    unknown = [b for b in chosen if b not in names]
-    if unknown or not chosen:
-        raise ValueError(f"basins: expected names among {names}, found {chosen}. "
-                         "Fix: pass some of those names or None for all.")
+    chosen = choose_basins(ct, basins)
     scales = {"monthly": DAYS_PER_YEAR / 12, "seasonal": DAYS_PER_YEAR / 4,
               "annual": DAYS_PER_YEAR}
     if "sverdrup_adjusted" in data and "time_scale_length" in data["sverdrup_adjusted"].coords:

@@ -8,6 +8,7 @@ import numpy as np
 import xarray as xr
 from matplotlib import ticker as mticker
 
+from ._inputs import choose_basins
 from ._inputs import runs as _runs
 from ._style import figure_width as _figure_width
 from ._style import fonts as _fonts
@@ -62,16 +63,7 @@ def plot_balance(check, *, observations=None, basins=None, residual: bool = True
             + ". Fix: pass the whole result of balance_check()."
         )
     lat = _lat_name(check)
-    names = [str(b) for b in check["basin"].values]
-    if basins is None:
-        has = check["interior_transport"].notnull().any(lat).values
-        chosen = [n for n, ok in zip(names, has) if ok]
-    else:
-        chosen = list(basins)
-    unknown = [b for b in chosen if b not in names]
-    if unknown or not chosen:
-        raise ValueError(f"basins: expected names among {names}, found {chosen}. "
-                         "Fix: pass some of those names or None for all.")
+    chosen = choose_basins(check["interior_transport"], basins)
     gpe = check["geostrophic_plus_ekman"]
     refs = None
     if "reference_pressure" in gpe.dims:

@@ -4,7 +4,6 @@ stress, one panel per basin, with their difference."""
 from __future__ import annotations
 
 import matplotlib.pyplot as plt
-import numpy as np
 
 __all__ = ["plot_model_vs_sverdrup"]
 

@@ -9,7 +9,7 @@ import numpy as np
 import xarray as xr
 from matplotlib import ticker as mticker
 
-from ._inputs import basin_names, reduce_time, runs, status_info
+from ._inputs import choose_basins, reduce_time, runs, status_info
 from ._style import (
     SKIP_REASONS,
     as_display,
@@ -66,17 +66,7 @@ def plot_interior_transport(data, *, basins=None, observations=None, time="mean"
             + ". Fix: pass the whole result of sverdrup_transport()."
         )
     interior = reduce_time(data["interior_transport"], time, "interior_transport")
-    names = basin_names(data)
-    if basins is None:
-        # A basin with no valid row at all (a circumpolar channel) would be an empty panel.
-        has_values = interior.notnull().any([d for d in interior.dims if d != "basin"]).values
-        chosen = [n for n, ok in zip(names, has_values) if ok]
-    else:
-        chosen = list(basins)
-    unknown = [b for b in chosen if b not in names]
-    if unknown or not chosen:
-        raise ValueError(f"basins: expected names among {names}, found {chosen}. "
-                         "Fix: pass some of those names or None for all.")
+    chosen = choose_basins(interior, basins)
     bc = None
     if boundary_current and "boundary_current_transport" in data:
         bc = reduce_time(data["boundary_current_transport"], time, "boundary_current_transport")

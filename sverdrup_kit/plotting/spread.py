@@ -10,6 +10,7 @@ import numpy as np
 import xarray as xr
 from matplotlib import ticker as mticker
 
+from ._inputs import choose_basins
 from ._style import figure_width as _figure_width
 from ._style import fonts as _fonts
 from ._style import latitude_formatter as _lat_formatter
@@ -64,13 +65,7 @@ def plot_transport_spread(spread, *, basins=None, observations=None, width="colu
 
         observations = boundary_current_observations()
     tr = -spread["interior_transport"]
-    names = [str(b) for b in spread["basin"].values]
-    if basins is None:
-        basins = [b for b in names if bool(tr.sel(basin=b).notnull().any())]
-    unknown = [b for b in basins if b not in names]
-    if unknown or not basins:
-        raise ValueError(f"basins: expected names among {names}, found {list(basins)}. "
-                         "Fix: pass some of those names or None for all.")
+    basins = choose_basins(tr, basins)
     combos = tr.stack(combination=("product", "drag_law", "mean_speed"))
     w = _figure_width(width)
     fs = _fonts(w)

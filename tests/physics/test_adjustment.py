@@ -15,7 +15,7 @@ import pytest
 import xarray as xr
 
 from sverdrup_kit.constants import EARTH_RADIUS as R
-from sverdrup_kit.constants import OMEGA, RHO0
+from sverdrup_kit.constants import OMEGA
 from sverdrup_kit.physics.adjustment import (
     TIME_SCALES,
     adjustment_flags,

@@ -8,7 +8,6 @@ import xarray as xr
 
 from sverdrup_kit import SphericalGrid, wind_stress_curl
 from sverdrup_kit.constants import EARTH_RADIUS as R
-from sverdrup_kit.geometry.coords import GridError
 
 from .._dask_guard import CountingScheduler
 
