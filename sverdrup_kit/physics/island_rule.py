@@ -553,8 +553,10 @@ def _circulation_kernel(tx, ty, *, water, fill_gaps, periodic, Wx, Wy):
         ty = fill_from_neighbours(ty, target=water, periodic=periodic)
     # Along the row for both components: a zonal face then takes its row's stress, a
     # meridional face on a coast the stress of the water beside it.
-    tx = _carry_along(tx, -1, periodic)
-    ty = _carry_along(ty, -1, periodic)
+    # Only the rows the paths touch matter.
+    rows = np.unique(np.concatenate([Wx.indices, Wy.indices]) // tx.shape[-1])
+    tx[..., rows, :] = _carry_along(tx[..., rows, :], -1, periodic)
+    ty[..., rows, :] = _carry_along(ty[..., rows, :], -1, periodic)
     lead = tx.shape[:-2]
     fx = tx.reshape(-1, tx.shape[-2] * tx.shape[-1])
     fy = ty.reshape(-1, ty.shape[-2] * ty.shape[-1])
@@ -1076,8 +1078,14 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
     canonical grid (None without islands).
     """
     lat, lon = geo.layout.lat_name, geo.layout.lon_name
-    selection = default_islands(geo)
-    paths = island_paths(geo, selection, equatorial_half_width) if selection else []
+    # Paths, their weights and the run table depend on grid, mask and options alone: kept on
+    # the (cached) land geometry, so a loop over fields works them out once.
+    cache = geo.__dict__.setdefault("_island_cache", {})
+    key = ("paths", float(equatorial_half_width))
+    if key not in cache:
+        selection = default_islands(geo)
+        cache[key] = island_paths(geo, selection, equatorial_half_width) if selection else []
+    paths = cache[key]
     if paths:
         legs = rule_transport(tx, ty, paths, geo, rho0=rho0, fill_gaps=fill_gaps)
         T = legs.isel(variant=0).sum("leg", skipna=False)
@@ -1086,7 +1094,10 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
         island_psi = (-T).fillna(0.0)
     else:
         island_psi = xr.DataArray(np.zeros((0,)), dims="island")
-    table = _run_table(plan, geo, paths)
+    key = ("table", id(plan), float(equatorial_half_width))
+    if key not in cache:
+        cache[key] = _run_table(plan, geo, paths)
+    table = cache[key]
     n_isl = len(paths)
     new_psi, basin_bc, island_bc = xr.apply_ufunc(
         _constants_kernel,

@@ -58,6 +58,16 @@ GYRE_THRESHOLD_SV = 2.0
 MIN_OBSERVED_FRACTION = 0.5
 
 
+def _land_geometry_cached(geometry, layout):
+    """The island rule's view of ``geometry``, kept with it (geometry is cached per grid, mask
+    and options, so the island paths worked out on this view are reused across fields)."""
+    cache = geometry.__dict__.setdefault("_land_views", {})
+    key = (layout.lat_name, layout.lon_name)
+    if key not in cache:
+        cache[key] = land_geometry_from(geometry, layout)
+    return cache[key]
+
+
 def _fill_kernel(tx, ty, *, target, keep_missing, periodic):
     """Fill stress gaps inside ``target`` (both components missing where either is)."""
     tx = np.asarray(tx, dtype=np.float64)
@@ -445,7 +455,7 @@ def sverdrup_transport(
 
     basin_bc = islands = None
     if island_rule:
-        geo = land_geometry_from(geometry, lay)
+        geo = _land_geometry_cached(geometry, lay)
         psi, basin_bc, islands = sverdrup_island_constants(
             tx, ty, psi, v, transport, geo=geo, plan=plan, rho0=rho0, fill_gaps=fill_gaps,
             equatorial_half_width=equatorial_half_width)
