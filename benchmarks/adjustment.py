@@ -11,11 +11,11 @@ Run: .venv/bin/python benchmarks/adjustment.py
 from __future__ import annotations
 
 import argparse
-import time
 
 import numpy as np
 import pandas as pd
 import xarray as xr
+from timing import best_time
 
 from sverdrup_kit import (
     first_mode_speed_from_ts,
@@ -25,15 +25,6 @@ from sverdrup_kit import (
     wind_stress,
 )
 from sverdrup_kit.synthetic import load_world, world_basins
-
-
-def _best(fn, repeat):
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), out
 
 
 def main(argv=None) -> None:
@@ -47,7 +38,7 @@ def main(argv=None) -> None:
     except (FileNotFoundError, ValueError) as err:
         print(f"T/S climatology skipped: {err}")
     else:
-        t, c1 = _best(lambda: first_mode_speed_from_ts(ts.TEMP, ts.SALT).compute(), args.repeat)
+        t, c1 = best_time(lambda: first_mode_speed_from_ts(ts.TEMP, ts.SALT).compute(), args.repeat)
         n = int(np.isfinite(c1.values).sum())
         print(f"first_mode_speed_from_ts: {n} columns x {ts.sizes['ZAXLEVITR']} levels in "
               f"{t:.2f} s")
@@ -56,9 +47,9 @@ def main(argv=None) -> None:
     basins = world_basins(world)
     stress = wind_stress(world.u, world.v, wind_speed=world.wind_speed)
     sv = sverdrup_transport(stress.taux.mean("time"), stress.tauy.mean("time"), basins=basins)
-    t, _ = _best(lambda: rossby_adjustment(sv), args.repeat)
+    t, _ = best_time(lambda: rossby_adjustment(sv), args.repeat)
     print(f"rossby_adjustment, synthetic world 90 x 180: {t:.2f} s")
-    t, _ = _best(lambda: long_wave_response(stress.taux, stress.tauy, sv, periodic=True),
+    t, _ = best_time(lambda: long_wave_response(stress.taux, stress.tauy, sv, periodic=True),
                  args.repeat)
     print(f"long_wave_response, periodic 12-month climatology: {t:.2f} s")
     years = 60
@@ -67,7 +58,7 @@ def main(argv=None) -> None:
                         coords={"time": time_})
     taux = (stress.taux.mean("time") * ramp).assign_attrs(units="Pa")
     tauy = (stress.tauy.mean("time") * ramp).assign_attrs(units="Pa")
-    t, _ = _best(lambda: long_wave_response(taux, tauy, sv, initial="steady"), args.repeat)
+    t, _ = best_time(lambda: long_wave_response(taux, tauy, sv, initial="steady"), args.repeat)
     print(f"long_wave_response, {years} annual steps: {t:.2f} s")
 
 

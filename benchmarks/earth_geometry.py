@@ -34,19 +34,10 @@ import fields
 import naive
 import numpy as np
 import xarray as xr
+from timing import best_time
 
 from sverdrup_kit.geometry.integral import clear_geometry_cache
 from sverdrup_kit.physics.sverdrup import sverdrup_transport
-
-
-def best_time(fn, repeat):
-    out = fn()
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), out
 
 
 def earth_mask_quarter_degree():

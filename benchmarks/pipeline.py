@@ -11,26 +11,16 @@ from __future__ import annotations
 
 import argparse
 import os
-import time
 
 import fields
 import numpy as np
 import xarray as xr
+from timing import best_time
 
 from sverdrup_kit._compiled import dispatch
 from sverdrup_kit.physics.ekman import ekman
 from sverdrup_kit.physics.operators import wind_stress_curl
 from sverdrup_kit.physics.sverdrup import sverdrup_transport
-
-
-def best_time(fn, repeat):
-    out = fn()
-    times = []
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        out = fn()
-        times.append(time.perf_counter() - t0)
-    return min(times), out
 
 
 def worst_difference(got, ref):
