@@ -226,38 +226,32 @@ def _band_edges(grid, band_width):
 
 
 def _label_basins(ocean, grid, min_area_km2):
-    from scipy import ndimage
+    """Connected ocean regions through the grid's own neighbours (faces, the periodic seam and
+    the north fold), largest first; regions under ``min_area_km2`` belong to no basin."""
+    from scipy.sparse import coo_matrix
+    from scipy.sparse.csgraph import connected_components
 
-    lab, n = ndimage.label(ocean)
-    parent = np.arange(n + 1)
-
-    def find(a):
-        while parent[a] != a:
-            parent[a] = parent[parent[a]]
-            a = parent[a]
-        return a
-
-    def union(a, b):
-        for x, y in zip(a.ravel(), b.ravel()):
-            if x and y:
-                rx, ry = find(x), find(y)
-                if rx != ry:
-                    parent[ry] = rx
-
-    if grid.periodic:
-        union(lab[:, 0], lab[:, -1])
-    if grid.north_fold:
-        union(lab[-1], lab[-1, ::-1])
-    roots = np.array([find(k) for k in range(n + 1)])
-    lab = roots[lab]
-    area = grid.cell_area / 1e6
-    ids = np.unique(lab[lab > 0])
-    sizes = np.array([area[lab == k].sum() for k in ids])
+    n = ocean.size
+    index = np.arange(n, dtype=np.float64).reshape(ocean.shape)
+    wet = np.where(ocean, index, np.nan)
+    src, dst = [], []
+    for side in ("E", "N"):
+        other = grid.neighbour(wet, side)
+        link = ocean & np.isfinite(other)
+        src.append(index[link].astype(np.int64))
+        dst.append(other[link].astype(np.int64))
+    src, dst = np.concatenate(src), np.concatenate(dst)
+    graph = coo_matrix((np.ones(src.size), (src, dst)), shape=(n, n))
+    _, lab = connected_components(graph, directed=False)
+    lab = np.where(ocean.ravel(), lab, -1)
+    area = (grid.cell_area / 1e6).ravel()
+    ids = np.unique(lab[lab >= 0])
+    sizes = np.bincount(lab[lab >= 0], weights=area[lab >= 0])[ids]
     keep = ids[sizes >= min_area_km2][np.argsort(-sizes[sizes >= min_area_km2])]
-    bid = np.full(ocean.shape, -1, dtype=np.int32)
+    bid = np.full(n, -1, dtype=np.int32)
     for k, root in enumerate(keep):
         bid[lab == root] = k
-    return bid, [f"basin_{k}" for k in range(len(keep))]
+    return bid.reshape(ocean.shape), [f"basin_{k}" for k in range(len(keep))]
 
 
 def _earth_basins(ocean, grid):
