@@ -85,6 +85,31 @@ def reason_style(meaning: str) -> Shade:
     return Shade(meaning.replace("_", " "), "#ececec", "++")
 
 
+def shade_row_status(ax, lat, status, meanings, handles, *, axis="x", zorder=0):
+    """Shade the runs of rows whose status says the Sverdrup relation was not applied.
+
+    ``lat`` (n,) and ``status`` (n,) of one basin; ``meanings`` maps flag values to names.
+    Spans run along x (``axvspan``, latitude on the x axis) or y (``axhspan``); legend handles
+    are added to ``handles``. Returns the (low, high) latitudes of every span drawn.
+    """
+    from ._inputs import runs
+
+    dlat = np.median(np.diff(lat)) if lat.size > 1 else 1.0
+    span = ax.axvspan if axis == "x" else ax.axhspan
+    drawn = []
+    for value, meaning in meanings.items():
+        if meaning in SKIP_REASONS:
+            continue
+        shade = reason_style(meaning)
+        for i0, i1 in runs(status == value):
+            lo, hi = lat[i0] - dlat / 2, lat[i1] + dlat / 2
+            span(lo, hi, facecolor=shade.facecolor, hatch=shade.hatch, edgecolor="0.35", lw=0,
+                 zorder=zorder)
+            handles.setdefault(shade.label, shade.patch())
+            drawn.append((lo, hi))
+    return drawn
+
+
 def figure_width(width) -> float:
     if isinstance(width, str):
         if width in FIGURE_WIDTHS:

@@ -19,13 +19,12 @@ from ..geometry.coords import require_dataarray
 from ._inputs import choose_basins
 from ._inputs import runs as _runs
 from ._inputs import status_info as _status_info
-from ._style import SKIP_REASONS as _SKIP_REASONS
 from ._style import as_display as _as_display
 from ._style import figure_width as _figure_width
 from ._style import fonts as _fonts
 from ._style import latitude_formatter as _lat_formatter
 from ._style import rc as _rc
-from ._style import reason_style as _reason_style
+from ._style import shade_row_status as _shade_row_status
 from ._style import style_axes as _style
 
 __all__ = ["plot_crossing_time", "plot_lagged_transport", "mark_adjusted_rows"]
@@ -102,16 +101,8 @@ def plot_crossing_time(data, *, basins=None, width="column", title=None):
         for ax, name in zip(axes, chosen):
             y = ct.sel(basin=name).values
             if meanings:
-                status = data["row_status"].sel(basin=name).values
-                for value, meaning in meanings.items():
-                    if meaning in _SKIP_REASONS:
-                        continue
-                    shade = _reason_style(meaning)
-                    for i0, i1 in _runs(status == value):
-                        ax.axvspan(lat[i0] - dlat / 2, lat[i1] + dlat / 2,
-                                   facecolor=shade.facecolor, hatch=shade.hatch,
-                                   edgecolor="0.35", lw=0, zorder=0)
-                        handles.setdefault(shade.label, shade.patch())
+                _shade_row_status(ax, lat, data["row_status"].sel(basin=name).values,
+                                  meanings, handles)
             (line,) = ax.plot(lat, y, color="#08306b", lw=1.1, zorder=3,
                               label="crossing time to the western boundary")
             handles.setdefault("crossing", line)

@@ -9,9 +9,8 @@ import numpy as np
 import xarray as xr
 from matplotlib import ticker as mticker
 
-from ._inputs import choose_basins, reduce_time, runs, status_info
+from ._inputs import choose_basins, reduce_time, status_info
 from ._style import (
-    SKIP_REASONS,
     as_display,
     figure_width,
     fonts,
@@ -20,7 +19,7 @@ from ._style import (
     line_height,
     place_panels,
     rc,
-    reason_style,
+    shade_row_status,
     style_axes,
     text_width,
 )
@@ -143,14 +142,7 @@ def _transport_panel(ax, data, shown, bc, name, lat_dim, meanings, obs, n_panels
         present = np.ones(lat.size, bool)
     lo, hi = lat[present].min(), lat[present].max()
     dlat = np.median(np.diff(lat)) if lat.size > 1 else 1.0
-    for value, meaning in meanings.items():
-        if meaning in SKIP_REASONS:
-            continue
-        shade = reason_style(meaning)
-        for i0, i1 in runs(status == value):
-            ax.axvspan(lat[i0] - dlat / 2, lat[i1] + dlat / 2, facecolor=shade.facecolor,
-                       hatch=shade.hatch, edgecolor="0.35", lw=0, zorder=0)
-            handles.setdefault(shade.label, shade.patch())
+    shade_row_status(ax, lat, status, meanings, handles)
     ax.axhline(0, color="0.5", lw=0.5, zorder=1)
     (line,) = ax.plot(lat, y, color="#08306b", lw=1.1, zorder=3, label="Sverdrup interior")
     handles.setdefault("interior", line)

@@ -13,9 +13,8 @@ from matplotlib import ticker as mticker
 
 from ..geometry.coords import grid_layout, require_dataarray, to_canonical
 from ..geometry.grid import cell_edges
-from ._inputs import quiet_mean, runs, status_info
+from ._inputs import quiet_mean, status_info
 from ._style import (
-    SKIP_REASONS,
     as_display,
     axis_label,
     cmocean,
@@ -31,7 +30,7 @@ from ._style import (
     long_name,
     place_panels,
     rc,
-    reason_style,
+    shade_row_status,
     style_axes,
     text_width,
 )
@@ -145,16 +144,9 @@ def plot_latitude_time(data, *, basin=None, row_status=None, width="column", cma
                 st = row_status.sel(basin=b).values
                 st_lat = row_status[[d for d in row_status.dims if d != "basin"][0]].values
                 dl = np.median(np.diff(st_lat))
-                for value, meaning in meanings.items():
-                    if meaning in SKIP_REASONS:
-                        continue
-                    shade = reason_style(meaning)
-                    for i0, i1 in runs(st == value):
-                        ax.axhspan(st_lat[i0] - dl / 2, st_lat[i1] + dl / 2,
-                                   facecolor=shade.facecolor, hatch=shade.hatch,
-                                   edgecolor="0.35", lw=0, zorder=0.5)
-                        handles.setdefault(shade.label, shade.patch())
-                        spans.append((st_lat[i0] - dl, st_lat[i1] + dl))
+                drawn = shade_row_status(ax, st_lat, st, meanings, handles, axis="y",
+                                         zorder=0.5)
+                spans.extend((lo - dl / 2, hi + dl / 2) for lo, hi in drawn)
             if adjusted is not None and b is not None and b in [str(x) for x in
                                                                 adjusted["basin"].values]:
                 mark_adjusted_rows(ax, adjusted.sel(basin=b), fs=fs, handles=handles)
