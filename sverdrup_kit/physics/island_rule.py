@@ -140,6 +140,19 @@ ISLAND_RULE_STATUS = {
     32: ("no_tip", "the island reaches the edge of the grid: no rule (NaN)"),
 }
 
+#: Attributes shared by every output of the rule (island_rule and sverdrup_transport).
+_TRANSPORT_ATTRS = {
+    "long_name": "northward transport between the island and the eastern coast of its basin "
+    "from Godfrey's island rule",
+    "units": SV_UNITS,
+}
+_STATUS_ATTRS = {
+    "long_name": "quality of the island rule",
+    "flag_masks": np.array(list(ISLAND_RULE_STATUS), dtype=np.int8),
+    "flag_meanings": " ".join(n for n, _ in ISLAND_RULE_STATUS.values()),
+    "comment": "; ".join(f"{k} {n}: {w}" for k, (n, w) in ISLAND_RULE_STATUS.items()),
+}
+
 LEGS = ("north", "east", "south", "west")
 # Path variants: the base path, then each tip moved by one grid row.
 _VARIANTS = ((0, 0), (1, 0), (-1, 0), (0, 1), (0, -1))  # (north shift, south shift)
@@ -794,17 +807,11 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
         plon[k, : J.size] = x - x[0] + x0  # unwrapped along the path, so a line plots whole
     island = xr.DataArray(np.array(names, dtype=object), dims="island", name="island",
                           attrs={"long_name": "island"})
-    status_attrs = {
-        "long_name": "quality of the island rule",
-        "flag_masks": np.array(list(ISLAND_RULE_STATUS), dtype=np.int8),
-        "flag_meanings": " ".join(n for n, _ in ISLAND_RULE_STATUS.values()),
-        "comment": "; ".join(f"{k} {n}: {w}" for k, (n, w) in ISLAND_RULE_STATUS.items()),
-    }
+
     ds = xr.Dataset(
         {
             "island_transport": base.assign_attrs(
-                long_name="northward transport between the island and the eastern coast of its "
-                "basin from Godfrey's island rule", units=SV_UNITS,
+                **_TRANSPORT_ATTRS,
                 comment="T = (clockwise line integral of the stress) / (rho0 (f_S - f_N)); "
                 "NaN where island_rule_status has no_eastern_coast or no_tip"),
             "island_streamfunction": (-base).assign_attrs(
@@ -834,7 +841,7 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
                                                        dtype=object),
                                     {"long_name": "basin of the water at the eastern coast"}),
             "island_rule_status": ("island", np.array([p.status for p in paths], np.int8),
-                                   status_attrs),
+                                   _STATUS_ATTRS),
             "path_lat": (("island", "path_point"), plat,
                          {"long_name": "latitude of the island rule's path", "units":
                           "degrees_north", "comment": "cell faces, clockwise from the "
@@ -1121,8 +1128,7 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
     extra = xr.Dataset(
         {
             "island_transport": T_da.assign_attrs(
-                long_name="northward transport between the island and the eastern coast of its "
-                "basin from Godfrey's island rule", units=SV_UNITS,
+                **_TRANSPORT_ATTRS,
                 comment="see sverdrup_kit.island_rule; NaN where the rule is refused "
                 "(island_rule_status), and the island's constant is then zero"),
             "island_boundary_current_transport": island_bc.assign_attrs(
@@ -1132,10 +1138,7 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
                 "east of the island minus the island's constant; NaN in rows where the island "
                 "has no such water. An island that is the western coast of a basin row (Australia "
                 "in the Pacific) has that current in boundary_current_transport instead"),
-            "island_rule_status": ("island", status, {
-                "long_name": "quality of the island rule",
-                "flag_masks": np.array(list(ISLAND_RULE_STATUS), dtype=np.int8),
-                "flag_meanings": " ".join(n for n, _ in ISLAND_RULE_STATUS.values())}),
+            "island_rule_status": ("island", status, _STATUS_ATTRS),
             "north_tip_lat": ("island", [g.lat_edges[p.rows[1] + 1] if not p.status & 32
                                          else np.nan for p in paths],
                               {"long_name": "latitude of the northern leg",
