@@ -807,7 +807,6 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
         plon[k, : J.size] = x - x[0] + x0  # unwrapped along the path, so a line plots whole
     island = xr.DataArray(np.array(names, dtype=object), dims="island", name="island",
                           attrs={"long_name": "island"})
-
     ds = xr.Dataset(
         {
             "island_transport": base.assign_attrs(
