@@ -31,6 +31,8 @@ import xarray as xr
 
 from .errors import InputError, UndeclaredFillValueWarning
 from .io.units import KIND, si_factor
+from ._compiled.dispatch import screen
+from ._compiled.screen import fill_cells
 from .limits import FILL_SENTINEL, PLAUSIBLE_LIMITS, UNDECLARED_FILL_VALUES
 
 _SIGNS = {
@@ -129,26 +131,15 @@ def mask(values, name: str) -> np.ndarray:
 # --- fields ---
 
 
-def _fill_cells(a: np.ndarray) -> np.ndarray | None:
-    """Cells holding a common undeclared fill value, compared in the array's own precision;
-    None when there are none (the usual case, found without building the mask twice)."""
-    if a.dtype.kind not in "iuf":
-        return None
-    hit = None
-    info = np.finfo(a.dtype) if a.dtype.kind == "f" else np.iinfo(a.dtype)
-    for fill in UNDECLARED_FILL_VALUES:
-        # Fills beyond the sentinel are found by it, in the same pass for all of them.
-        if abs(fill) < FILL_SENTINEL and info.min <= fill <= info.max:
-            eq = a == np.asarray(fill).astype(a.dtype)
-            hit = eq if hit is None else hit | eq
-    if a.dtype.kind == "f":
-        with np.errstate(invalid="ignore"):
-            # Two comparisons allocate less than abs() on a large field.
-            far = (a >= FILL_SENTINEL) | (a <= -FILL_SENTINEL)
-        if far.any():
-            far &= np.isfinite(a)
-            hit = far if hit is None else hit | far
-    return hit if hit is not None and hit.any() else None
+def _fills_for(dtype) -> np.ndarray:
+    """The common undeclared fill values that ``dtype`` can hold, in that dtype; those beyond
+    the sentinel are found by it."""
+    if dtype.kind not in "iuf":
+        return np.zeros(0, dtype=dtype if dtype.kind in "iufc" else np.float64)
+    info = np.finfo(dtype) if dtype.kind == "f" else np.iinfo(dtype)
+    keep = [f for f in UNDECLARED_FILL_VALUES
+            if abs(f) < FILL_SENTINEL and info.min <= f <= info.max]
+    return np.asarray(keep).astype(dtype)
 
 
 def _where(index, offset, dims, coords) -> str:
@@ -170,28 +161,28 @@ def _screen(a, *, name, kind, factor, dims=None, coords=None, fills=True, block_
         offset = tuple(lo for lo, _ in block_info[0]["array-location"])
         scope = " in one block of the data"
     a = np.asarray(a)
-    out = np.array(a, dtype=np.float64)  # always a copy: the caller's data stay as they are
-    hit = _fill_cells(a) if fills else None
-    if hit is not None:
+    limit, units, why = PLAUSIBLE_LIMITS[kind] if kind is not None else (np.inf, "", "")
+    fill_values = _fills_for(a.dtype) if fills else np.zeros(0, dtype=a.dtype)
+    sentinel = FILL_SENTINEL if fills else np.inf
+    # One pass for the usual clean field: a float64 copy (the caller's data stay as they
+    # are) and counts; the cells are looked for again only to word a message.
+    out, n_fill, n_over = screen(a, fills=fill_values, sentinel=sentinel, factor=factor,
+                                 limit=limit)
+    if n_fill:
+        hit = fill_cells(a, fill_values, sentinel)
         example = float(a[hit].flat[0])
         warnings.warn(
-            f"{name}: found {int(hit.sum())} cell(s){scope} holding {example:g}, a common "
+            f"{name}: found {n_fill} cell(s){scope} holding {example:g}, a common "
             "fill value not declared in _FillValue or missing_value; they are taken as "
             "missing. "
             f"Fix: declare it in the variable's _FillValue attribute ({example:g}), or mask "
             "it yourself before passing the data.",
             UndeclaredFillValueWarning, stacklevel=5,
         )
-        out[hit] = np.nan
-    if factor != 1.0:
-        out *= factor
-    if kind is None:
+    if not n_over:
         return out
-    limit, units, why = PLAUSIBLE_LIMITS[kind]
     with np.errstate(invalid="ignore"):
         over = (out > limit) | (out < -limit)  # infinite values too: told apart if found
-    if not over.any():
-        return out
     inf = np.isinf(out)
     if inf.any():
         at = _where(np.argwhere(inf)[0], offset, dims, coords) if dims is not None else ""

@@ -3,16 +3,19 @@
 Every kernel the wrappers call goes through here. The compiled twins (:mod:`.jit`) are imported
 only on the first call, so importing :mod:`sverdrup_kit` does not import numba; setting
 ``SVERDRUP_KIT_JIT=0`` sends every call through the NumPy statement of the method.
-Imports run one way: dispatch -> (curl, scan, geometry, jit, jit_geometry) -> stencil.
+Imports run one way: dispatch -> (curl, scan, screen, geometry, jit, jit_geometry) -> stencil.
 """
 
 from __future__ import annotations
 
 import os
 
+import numpy as np
+
 from .curl import curl_kernel_numpy
 from .geometry import label_links_numpy, row_groups_numpy
-from .scan import fill_from_neighbours_numpy, westward_scan_numpy
+from .scan import coverage_numpy, fill_from_neighbours_numpy, fill_pair_numpy, westward_scan_numpy
+from .screen import screen_numpy
 
 #: Setting this environment variable to 0 sends every kernel through the NumPy reference path.
 JIT_ENV = "SVERDRUP_KIT_JIT"
@@ -67,6 +70,44 @@ def fill_from_neighbours(a, *, target, periodic):
 
     kernel = jit.fill_from_neighbours if jit_enabled() else fill_from_neighbours_numpy
     return kernel(a, target=target, periodic=periodic)
+
+
+def fill_pair(tx, ty, *, target, periodic, keep_missing=None):
+    """Fill the gaps of a stress pair: see :func:`.scan.fill_pair_numpy`.
+
+    Runs the compiled twin in :mod:`sverdrup_kit._compiled.jit` (the same numbers) unless the
+    environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    from . import jit
+
+    kernel = jit.fill_pair if jit_enabled() else fill_pair_numpy
+    return kernel(tx, ty, target=target, periodic=periodic, keep_missing=keep_missing)
+
+
+def coverage(tx, ty, cells, starts, slot, n_slots):
+    """Share of each slot's cells where both components are finite: see
+    :func:`.scan.coverage_numpy`.
+
+    Runs the compiled twin in :mod:`sverdrup_kit._compiled.jit` (the same numbers) unless the
+    environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    from . import jit
+
+    kernel = jit.coverage if jit_enabled() else coverage_numpy
+    return kernel(tx, ty, cells, starts, slot, n_slots)
+
+
+def screen(a, *, fills, sentinel, factor, limit):
+    """Fill cells and implausible magnitudes of a field: see :func:`.screen.screen_numpy`.
+
+    Floating arrays run the compiled twin in :mod:`sverdrup_kit._compiled.jit` (one pass; the
+    same numbers and counts) unless the environment variable ``SVERDRUP_KIT_JIT`` is ``0``.
+    """
+    if jit_enabled() and np.asarray(a).dtype in (np.float32, np.float64):
+        from .jit import screen as kernel
+    else:
+        kernel = screen_numpy
+    return kernel(a, fills=fills, sentinel=sentinel, factor=factor, limit=limit)
 
 
 def westward_scan(v, dx, cells, run_starts):

@@ -424,6 +424,13 @@ def _fill_field(field, target, periodic, todo, new):
             if target[j, i] and np.isnan(field[j, i]):
                 todo[m] = j * nx + i
                 m += 1
+    _fill_todo(field, periodic, todo, new, m)
+
+
+@_jit
+def _fill_todo(field, periodic, todo, new, m):
+    """The passes of :func:`_fill_field` over the ``m`` missing cells listed in ``todo``."""
+    ny, nx = field.shape
     while m > 0:
         for k in range(m):
             c = todo[k]
@@ -638,3 +645,153 @@ def fill_from_neighbours(a, *, target, periodic):
     kernel = _fill_parallel if _in_main_thread() else _fill_serial
     kernel(filled.reshape((-1,) + filled.shape[-2:]), target, bool(periodic))
     return filled
+
+
+@_jit
+def _pair_field(src, other, out, target, keep, periodic, todo, new):
+    """One component of :func:`fill_pair` on one (ny, nx) field, written into ``out``."""
+    ny, nx = out.shape
+    m = 0
+    for j in range(ny):
+        for i in range(nx):
+            x = src[j, i]
+            if np.isnan(x) or np.isnan(other[j, i]):
+                out[j, i] = np.nan
+                if target[j, i]:
+                    todo[m] = j * nx + i
+                    m += 1
+            elif target[j, i]:
+                out[j, i] = x
+            else:
+                out[j, i] = np.nan
+    _fill_todo(out, periodic, todo, new, m)
+    if keep.shape[0] > 0:
+        for j in range(ny):
+            for i in range(nx):
+                if keep[j, i] and (np.isnan(src[j, i]) or np.isnan(other[j, i])):
+                    out[j, i] = np.nan
+
+
+@numba.njit(cache=True, error_model="numpy", parallel=True)
+def _pair_parallel(tx, ty, ox, oy, target, keep, periodic):
+    n = tx.shape[1] * tx.shape[2]
+    for k in numba.prange(2 * tx.shape[0]):
+        t = k // 2
+        if k % 2 == 0:
+            _pair_field(tx[t], ty[t], ox[t], target, keep, periodic,
+                        np.empty(n, np.int64), np.empty(n))
+        else:
+            _pair_field(ty[t], tx[t], oy[t], target, keep, periodic,
+                        np.empty(n, np.int64), np.empty(n))
+
+
+@_jit
+def _pair_serial(tx, ty, ox, oy, target, keep, periodic):
+    n = tx.shape[1] * tx.shape[2]
+    todo, new = np.empty(n, np.int64), np.empty(n)
+    for t in range(tx.shape[0]):
+        _pair_field(tx[t], ty[t], ox[t], target, keep, periodic, todo, new)
+        _pair_field(ty[t], tx[t], oy[t], target, keep, periodic, todo, new)
+
+
+def fill_pair(tx, ty, *, target, periodic, keep_missing=None):
+    """Compiled twin of :func:`sverdrup_kit._compiled.scan.fill_pair_numpy` (same arguments
+    and results), one pass per component to copy and one to fill."""
+    shape = np.broadcast_shapes(np.shape(tx), np.shape(ty))
+    TX, TY = _stack(tx, shape), _stack(ty, shape)
+    target = np.ascontiguousarray(np.asarray(target, dtype=bool))
+    keep = (np.zeros((0, 0), dtype=bool) if keep_missing is None
+            else np.ascontiguousarray(np.asarray(keep_missing, dtype=bool)))
+    ox, oy = np.empty(TX.shape), np.empty(TX.shape)
+    kernel = _pair_parallel if _in_main_thread() else _pair_serial
+    kernel(TX, TY, ox, oy, target, keep, bool(periodic))
+    return ox.reshape(shape), oy.reshape(shape)
+
+
+@_jit
+def _screen_range(a, out, fills, sentinel, factor, limit, lo, hi, counts, b):
+    # Fills and limits are far from the values of a clean field: one test on |x| and |y|
+    # clears almost every cell, and NaN cells are cleared by the next.
+    small = sentinel
+    for f in fills:
+        small = min(small, abs(f))
+    n_fill = 0
+    n_over = 0
+    for k in range(lo, hi):
+        x = a[k]
+        y = np.float64(x) * factor
+        out[k] = y
+        if abs(x) < small and abs(y) <= limit:
+            continue
+        if np.isnan(x):
+            continue
+        hit = False
+        if x >= sentinel or x <= -sentinel:
+            hit = np.isfinite(x)
+        else:
+            for f in fills:
+                if x == f:
+                    hit = True
+                    break
+        if hit:
+            out[k] = np.nan
+            n_fill += 1
+        elif y > limit or y < -limit:
+            n_over += 1
+    counts[b, 0] = n_fill
+    counts[b, 1] = n_over
+
+
+@numba.njit(cache=True, error_model="numpy", parallel=True)
+def _screen_parallel(a, out, fills, sentinel, factor, limit, counts):
+    n, nb = a.size, counts.shape[0]
+    for b in numba.prange(nb):
+        _screen_range(a, out, fills, sentinel, factor, limit, b * n // nb, (b + 1) * n // nb,
+                      counts, b)
+
+
+def screen(a, *, fills, sentinel, factor, limit):
+    """Compiled twin of :func:`sverdrup_kit._compiled.screen.screen_numpy` (same arguments and
+    results) for float32 and float64 arrays."""
+    a = np.asarray(a)
+    flat = np.ascontiguousarray(a).reshape(-1)
+    out = np.empty(flat.shape, dtype=np.float64)
+    args = (flat, out, np.asarray(fills, dtype=a.dtype), a.dtype.type(sentinel), float(factor),
+            float(limit))
+    if _in_main_thread():
+        counts = np.zeros((_blocks(), 2), dtype=np.int64)
+        _screen_parallel(*args, counts)
+    else:
+        counts = np.zeros((1, 2), dtype=np.int64)
+        _screen_range(*args, 0, flat.size, counts, 0)
+    return out.reshape(a.shape), int(counts[:, 0].sum()), int(counts[:, 1].sum())
+
+
+@_jit
+def _coverage_rows(tx, ty, cells, starts, out):
+    nc = cells.size
+    for t in range(tx.shape[0]):
+        for s in range(starts.size):
+            hi = starts[s + 1] if s + 1 < starts.size else nc
+            n = 0
+            for k in range(starts[s], hi):
+                q = cells[k]
+                if np.isfinite(tx[t, q]) and np.isfinite(ty[t, q]):
+                    n += 1
+            out[t, s] = n / (hi - starts[s])
+
+
+def coverage(tx, ty, cells, starts, slot, n_slots):
+    """Compiled twin of :func:`sverdrup_kit._compiled.scan.coverage_numpy` (same arguments and
+    results)."""
+    shape = np.broadcast_shapes(np.shape(tx), np.shape(ty))
+    lead = shape[:-2]
+    TX = _stack(tx, shape).reshape(-1, shape[-2] * shape[-1])
+    TY = _stack(ty, shape).reshape(TX.shape)
+    out = np.full((TX.shape[0], n_slots), np.nan)
+    if np.size(starts):
+        share = np.empty((TX.shape[0], np.size(starts)))
+        _coverage_rows(TX, TY, np.ascontiguousarray(cells, dtype=np.int64),
+                       np.ascontiguousarray(starts, dtype=np.int64), share)
+        out[:, slot] = share
+    return out.reshape(lead + (n_slots,))

@@ -54,6 +54,37 @@ def fill_from_neighbours_numpy(a, *, target, periodic):
         out = np.where(fill, total / np.where(count > 0, count, 1.0), out)
 
 
+def fill_pair_numpy(tx, ty, *, target, periodic, keep_missing=None):
+    """Fill the gaps of a stress pair inside ``target``; a cell is missing where either
+    component is.
+
+    Parameters
+    ----------
+    tx, ty : ndarray (..., ny, nx)
+        The two components, NaN where missing; not modified.
+    target, periodic
+        As for :func:`fill_from_neighbours_numpy`.
+    keep_missing : ndarray of bool (ny, nx), optional
+        Cells that stay missing where they were missing (the ocean when gaps are not filled;
+        small islands are still filled).
+
+    Returns
+    -------
+    fx, fy : ndarray (..., ny, nx), float64
+    """
+    tx = np.asarray(tx, dtype=np.float64)
+    ty = np.asarray(ty, dtype=np.float64)
+    missing = np.isnan(tx) | np.isnan(ty)
+    fx = fill_from_neighbours_numpy(np.where(missing, np.nan, tx), target=target,
+                                    periodic=periodic)
+    fy = fill_from_neighbours_numpy(np.where(missing, np.nan, ty), target=target,
+                                    periodic=periodic)
+    if keep_missing is None:
+        return fx, fy
+    stay = missing & keep_missing
+    return np.where(stay, np.nan, fx), np.where(stay, np.nan, fy)
+
+
 def westward_scan_numpy(v, dx, cells, run_starts):
     r"""Integrate ``v`` westward along runs of cells, each from its eastern end.
 
@@ -114,7 +145,7 @@ def sum_groups(totals, group_runs, group_starts, group_slot, n_slots):
     return out
 
 
-def coverage(tx, ty, cells, starts, slot, n_slots):
+def coverage_numpy(tx, ty, cells, starts, slot, n_slots):
     """Share of the cells of each slot where both ``tx`` and ``ty`` (..., ny, nx) are finite;
     NaN for slots with no cells.
 

@@ -15,8 +15,8 @@ import xarray as xr
 
 from .. import _validate, constants
 from .._apply import _bare, apply_grid_kernel, whole_fields
-from .._compiled.dispatch import fill_from_neighbours, westward_scan
-from .._compiled.scan import coverage, gyre_boundaries, sum_groups
+from .._compiled.dispatch import coverage, fill_pair, westward_scan
+from .._compiled.scan import gyre_boundaries, sum_groups
 from ..geometry.basins import (
     CELL_CLASS,
     CONTINENT_MIN_AREA,
@@ -70,37 +70,24 @@ def _land_geometry_cached(geometry, layout):
 
 def _fill_kernel(tx, ty, *, target, keep_missing, periodic):
     """Fill stress gaps inside ``target`` (both components missing where either is)."""
-    tx = np.asarray(tx, dtype=np.float64)
-    ty = np.asarray(ty, dtype=np.float64)
-    nx_, ny_ = np.isnan(tx), np.isnan(ty)
-    if not np.array_equal(nx_, ny_):
-        missing = nx_ | ny_
-        tx = np.where(missing, np.nan, tx)
-        ty = np.where(missing, np.nan, ty)
-    else:
-        missing = nx_
-    fx = fill_from_neighbours(tx, target=target, periodic=periodic)
-    fy = fill_from_neighbours(ty, target=target, periodic=periodic)
-    if keep_missing is None:
-        return fx, fy
-    stay = missing & keep_missing
-    return np.where(stay, np.nan, fx), np.where(stay, np.nan, fy)
+    return fill_pair(tx, ty, target=target, periodic=periodic, keep_missing=keep_missing)
 
 
-def _integral_kernel(curl, tx, ty, *, pole_factor, inv_rb, dx, plan, n_basins):
-    """Curl with pole rows masked, V, the westward scan, and each row's observed coverage."""
-    curl = np.asarray(curl, dtype=np.float64) * pole_factor[:, None]
+def _integral_kernel(curl, tx, ty, *, pole, inv_rb, dx_sv, plan, n_basins):
+    """Curl with pole rows masked, V, the westward scan (in Sv), and each row's observed
+    coverage."""
+    curl = np.asarray(curl, dtype=np.float64)
+    # The curl is this call's own intermediate, consumed here alone: its pole rows are masked
+    # in place rather than in a copy of the whole field.
+    curl[..., pole, :] = np.nan
     v = curl * inv_rb[:, None]
-    psi, totals = westward_scan(v, dx, plan.cells, plan.run_starts)
+    # dx in units of 1e6 m2: the scan returns psi and run totals in Sv, no pass to rescale.
+    psi, totals = westward_scan(v, dx_sv, plan.cells, plan.run_starts)
     ny = v.shape[-2]
     t = sum_groups(totals, plan.group_runs, plan.group_starts, plan.group_slot, n_basins * ny)
     t = t.reshape(t.shape[:-1] + (n_basins, ny))
     obs = coverage(tx, ty, plan.count_cells, plan.count_starts, plan.count_slot, n_basins * ny)
     obs = obs.reshape(obs.shape[:-1] + (n_basins, ny))
-    sv = constants.SVERDRUP_IN_M3_S
-    # psi and t are new arrays of the scan: scaled in place, one pass fewer over memory.
-    psi /= sv
-    t /= sv
     return curl, v, psi, t, obs
 
 
@@ -414,7 +401,6 @@ def sverdrup_transport(
     # Cells touching the pole: 1/cos(phi) makes their curl spikes, not data. V is also
     # missing in the equatorial band. Both, the scan and the coverage of each row by observed
     # stress run in one kernel, one pass per field.
-    pole_factor = np.where(pole, np.nan, 1.0)
     inv_rb = np.where(band | pole, np.nan, 1.0 / (rho0 * grid.beta))
     curl, v, psi, transport, observed = xr.apply_ufunc(
         _integral_kernel,
@@ -425,8 +411,8 @@ def sverdrup_transport(
         dask="parallelized",
         output_dtypes=[np.float64] * 5,
         dask_gufunc_kwargs={"output_sizes": {"basin": nb}},
-        kwargs=dict(pole_factor=pole_factor, inv_rb=inv_rb, dx=grid.dx, plan=plan,
-                    n_basins=nb),
+        kwargs=dict(pole=pole, inv_rb=inv_rb, dx_sv=grid.dx / constants.SVERDRUP_IN_M3_S,
+                    plan=plan, n_basins=nb),
         # Keep the coordinates' attributes; the variables get their own in _assemble.
         keep_attrs=True,
     )

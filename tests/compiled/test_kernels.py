@@ -385,3 +385,76 @@ def test_compiled_curl_views_and_single_field():
     one = _fast.curl(tx[0], ty[0], phi, lam, periodic=True, radius=RADIUS)
     assert one.shape == tx.shape[1:]
     assert _rel_err(one, ref[0]) < 1e-14
+
+
+@pytest.mark.parametrize("keep_missing", [False, True])
+def test_compiled_fill_pair_matches_numpy_pair(keep_missing):
+    # Source: derived from _scan.fill_pair_numpy (the NumPy statement: a cell is missing where
+    # either component is, then the gap fill of each); the same passes, so bit for bit, in
+    # the main thread (parallel) and in a worker thread (serial).
+    rng = np.random.default_rng(21)
+    ny, nx = 30, 50
+    target = rng.random((ny, nx)) < 0.85
+    tx = rng.normal(size=(3, ny, nx))
+    ty = rng.normal(size=(3, ny, nx))
+    tx[rng.random(tx.shape) < 0.3] = np.nan
+    ty[rng.random(ty.shape) < 0.3] = np.nan  # gaps that differ between the components
+    ty[2, :20, :] = np.nan
+    keep = (rng.random((ny, nx)) < 0.5) if keep_missing else None
+    before = tx.copy(), ty.copy()
+    ref = _scan.fill_pair_numpy(tx, ty, target=target, periodic=True, keep_missing=keep)
+    got = _fast.fill_pair(tx, ty, target=target, periodic=True, keep_missing=keep)
+    box = {}
+    th = threading.Thread(target=lambda: box.setdefault("out", _fast.fill_pair(
+        tx, ty, target=target, periodic=True, keep_missing=keep)))
+    th.start()
+    th.join()
+    np.testing.assert_array_equal(tx, before[0])
+    np.testing.assert_array_equal(ty, before[1])
+    for g, w, r in zip(got, box["out"], ref):
+        np.testing.assert_array_equal(g, r)
+        np.testing.assert_array_equal(w, r)
+    # Both components end missing in the same cells.
+    np.testing.assert_array_equal(np.isnan(got[0]), np.isnan(got[1]))
+    assert np.isnan(got[0][:, ~target]).all()
+
+
+@pytest.mark.parametrize("dtype", [np.float64, np.float32])
+def test_compiled_screen_matches_numpy_screen(dtype):
+    # Source: derived from _compiled.screen.screen_numpy (the NumPy statement of the field
+    # screen): the same copy, the same fills set missing and the same counts.
+    from sverdrup_kit._compiled.screen import screen_numpy
+
+    rng = np.random.default_rng(22)
+    a = rng.normal(0.0, 0.3, size=(4, 20, 30)).astype(dtype)
+    a[0, 0, :5] = [-9999.0, -999.0, 1e20, -1e34, 9.969209968386869e36]
+    a[1, 2, 3] = np.nan
+    a[2, 4, 5] = np.inf
+    a[3, 6, 7] = 150.0  # beyond a 100 limit, not a fill
+    fills = np.asarray([-9999.0, -999.0]).astype(dtype)
+    before = a.copy()
+    for factor, limit in ((1.0, 100.0), (0.1, 10.0), (1.0, np.inf)):
+        ref = screen_numpy(a, fills=fills, sentinel=1e15, factor=factor, limit=limit)
+        got = _fast.screen(a, fills=fills, sentinel=1e15, factor=factor, limit=limit)
+        np.testing.assert_array_equal(got[0], ref[0])
+        assert got[0].dtype == np.float64
+        assert got[1:] == ref[1:]
+    np.testing.assert_array_equal(a, before)
+    assert ref[1] == 5  # the five fills, counted the same way by both
+
+
+def test_compiled_coverage_matches_numpy_coverage():
+    # Source: derived from _scan.coverage_numpy: the share of each slot's cells where both
+    # components are finite.
+    rng = np.random.default_rng(23)
+    tx = rng.normal(size=(2, 10, 12))
+    ty = rng.normal(size=(2, 10, 12))
+    tx[rng.random(tx.shape) < 0.3] = np.nan
+    ty[rng.random(ty.shape) < 0.2] = np.nan
+    cells = rng.permutation(120)[:80]
+    starts = np.array([0, 10, 35, 60])
+    slot = np.array([4, 0, 2, 5])
+    ref = _scan.coverage_numpy(tx, ty, cells, starts, slot, 7)
+    got = _fast.coverage(tx, ty, cells, starts, slot, 7)
+    np.testing.assert_array_equal(got, ref)
+    assert np.isnan(got[:, [1, 3, 6]]).all() and np.isfinite(got[:, slot]).all()
