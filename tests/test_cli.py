@@ -92,6 +92,29 @@ def test_real_climatology_runs_and_warnings_are_one_line(marine_climatology, tmp
     assert "atlantic" in captured.out and "pacific" in captured.out
 
 
+@pytest.mark.realdata
+def test_global_product_with_default_basins_has_no_row_across_two_oceans(marine_climatology,
+                                                                        tmp_path, capsys):
+    # Issue 10: with no --basins, a global Earth product gets the Earth basins, and no valid
+    # row of the written results spans more than half the globe or runs south of the capes
+    # from one ocean into the next (common practice: the Atlantic, Pacific and Indian basins
+    # end at the latitudes of Cape Agulhas, Tasmania and Cape Horn, Times Atlas of the World).
+    from sverdrup_kit import open_results
+
+    code = main(["diagnose", str(marine_climatology), "--out", str(tmp_path), "--no-figures",
+                 "--no-progress"])
+    err = capsys.readouterr().err
+    assert code == 0
+    assert "EarthBasinsNotice" in err
+    ds = open_results(tmp_path / "results.nc")
+    assert list(ds.basin.values) == ["atlantic", "pacific", "indian"]
+    valid = ds.row_status == 0
+    span = (ds.eastern_coast_lon - ds.western_coast_lon) % 360
+    assert int(valid.sum()) > 100  # not vacuous: about 40 rows per basin
+    assert float(span.where(valid).max()) <= 180.0
+    assert not valid.sel(lat=slice(-61, -45)).any()
+
+
 # --- figure options ------------------------------------------------------------------------------
 
 

@@ -5,6 +5,7 @@ from __future__ import annotations
 import datetime as _dt
 import os
 import tempfile
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -177,10 +178,15 @@ def open_results(path: str | os.PathLike, **kwargs) -> xr.Dataset:
     >>> ds = open_results("results.nc")  # doctest: +SKIP
     >>> ds.interior_transport.sel(basin="atlantic").sel(lat=26.5, method="nearest")  # doctest: +SKIP
     """
-    ds = xr.open_dataset(path, **kwargs)
-    for name in list(ds.coords):
-        dim = name[:-5] if name.endswith("_name") else None
-        if dim and ds[name].dims == (dim,) and dim not in ds.coords:
-            ds = ds.swap_dims({dim: name}).rename({name: dim})
+    with warnings.catch_warnings():
+        # A climatology's placeholder years (0 or 1) fall before the Gregorian reform:
+        # xarray then decodes time with cftime, as it should, and says so each time.
+        warnings.filterwarnings("ignore", message="Unable to decode time axis",
+                                category=xr.SerializationWarning)
+        ds = xr.open_dataset(path, **kwargs)
+        for name in list(ds.coords):
+            dim = name[:-5] if name.endswith("_name") else None
+            if dim and ds[name].dims == (dim,) and dim not in ds.coords:
+                ds = ds.swap_dims({dim: name}).rename({name: dim})
     return ds
 
