@@ -19,6 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 import xarray as xr
 
+from ..errors import GridError
 from .basins import assign_basins, earth_seas
 from .earth import looks_like_earth
 from .grid import SphericalGrid
@@ -236,8 +237,27 @@ def relief_depth(relief, ref, layout):
     if not isinstance(relief, xr.DataArray):
         raise TypeError(
             f"relief: expected an xarray.DataArray of surface height in m (negative below sea "
-            f"level) on the stress grid, found {type(relief).__name__}. Fix: wrap it with the "
+            f"level) on a latitude-longitude grid, found {type(relief).__name__}. Fix: wrap it with the "
             "same lat/lon coordinates as taux."
         )
-    vals = np.asarray(_mask_on_grid(relief, ref, layout, "relief"), dtype=np.float64)
+    try:
+        vals = _mask_on_grid(relief, ref, layout, "relief")
+    except GridError:
+        # Relief comes on a grid of its own, usually finer than the stress.
+        vals = _mask_on_grid(_relief_on(relief, ref), ref, layout, "relief")
+    vals = np.asarray(vals, dtype=np.float64)
     return np.where(np.isfinite(vals), -vals, 0.0)
+
+
+def _relief_on(relief, ref):
+    """Relief on a grid of its own (any resolution), as the mean height of the part of each
+    stress cell that lies below sea level (NaN where none does), on the stress grid."""
+    from .regrid import area_weighted_average
+
+    if relief.ndim != 2:
+        raise GridError(
+            f"relief: expected one (lat, lon) field of surface height in m, found dimensions "
+            f"{relief.dims}. Fix: select one field, e.g. relief.isel(time=0)."
+        )
+    below = relief.where(relief < 0)
+    return area_weighted_average(below, ref, min_coverage=1e-9, argname="relief")

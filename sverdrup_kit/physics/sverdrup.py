@@ -216,8 +216,10 @@ def sverdrup_transport(
         Earth basins only: sea name -> ``"counted"`` or ``"excluded"``, overriding
         :data:`~sverdrup_kit.geometry.earth.EARTH_SEAS` (e.g. ``{"caribbean": "counted"}``).
     relief : xarray.DataArray (lat, lon), optional
-        Surface height in m (negative below sea level) on the stress grid. Rows whose counted
-        ocean is mostly shallower than ``shelf_depth_m`` get the caution ``over_shelf``.
+        Surface height in m (negative below sea level) on the stress grid or on a regular
+        latitude-longitude grid of its own (then each stress cell takes the area-weighted mean
+        height of its part below sea level). Rows whose counted ocean is mostly shallower than
+        ``shelf_depth_m`` get the caution ``over_shelf``.
     shelf_depth_m : float, optional
         m. Default 1000: deeper than the Antarctic and Arctic shelves (400-800 m; common
         practice) and shallower than the open ocean.

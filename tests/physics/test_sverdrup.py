@@ -780,6 +780,15 @@ def test_cautions_poleward_of_the_circumpolar_band_and_over_shelves():
     assert np.all(st.sel(lat=slice(-35, -21)) == 9)
     assert np.all(st.sel(lat=slice(-49, -37)) == 0)
     assert np.isfinite(ds.interior_transport.isel(basin=0).sel(lat=slice(-75, -61))).all()
+    # The same relief on a grid twice as fine, as relief usually comes: averaged onto the
+    # stress cells (each holds four equal values), the same cautions.
+    step = float(lat[1] - lat[0])
+    fine_lat = (lat[:, None] + np.array([-0.25, 0.25]) * step).ravel()
+    fine_lon = (lon[:, None] + np.array([-0.25, 0.25]) * step).ravel()
+    fine = np.repeat(np.repeat(relief, 2, axis=0), 2, axis=1)
+    ds2 = sverdrup_transport(tx, ty, ocean_mask=field(ocean, lat, lon, units="1"),
+                             relief=field(fine, fine_lat, fine_lon, units="m"))
+    xr.testing.assert_identical(ds2.row_status, ds.row_status)
 
 
 def test_same_results_with_and_without_the_cache_in_memory_and_chunked(world):
@@ -806,20 +815,48 @@ def test_same_results_with_and_without_the_cache_in_memory_and_chunked(world):
 
 
 @pytest.fixture(scope="module")
-def coads_default(marine_climatology, etopo60):
-    from sverdrup_kit.geometry import integral
+def coads_mean_stress(marine_climatology):
     from sverdrup_kit.io.readers import open_winds
     from sverdrup_kit.physics.stress import wind_stress
 
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         w = open_winds(marine_climatology)
-        mean = wind_stress(w["u"], w["v"], drag_law="large-pond-1981").mean("time").compute()
+        return wind_stress(w["u"], w["v"], drag_law="large-pond-1981").mean("time").compute()
+
+
+@pytest.fixture(scope="module")
+def coads_default(coads_mean_stress, etopo60):
+    from sverdrup_kit.geometry import integral
+
+    mean = coads_mean_stress
     mask = _etopo_mask_on(mean, etopo60)
     integral._NOTICE_GIVEN = False
     with pytest.warns(integral.EarthBasinsNotice, match="Earth basins are used"):
         ds = sverdrup_transport(mean["taux"], mean["tauy"], ocean_mask=mask)
     return ds.compute()
+
+
+@pytest.mark.realdata
+def test_coads_rows_over_the_bering_shelf_get_the_caution(coads_mean_stress, etopo60):
+    # The relief on its own 1 degree grid (ETOPO60), averaged onto the 2 degree stress grid.
+    # Most of the Bering Sea north of 58N lies on the shelf, shallower than 200 m (Coachman
+    # 1986, Cont. Shelf Res. 5, 23-108; from memory), so the Pacific rows there are cautioned;
+    # the open subtropical rows are deep and stay valid.
+    relief = xr.open_dataset(etopo60)
+    relief = relief[list(relief.data_vars)[0]]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        ds = sverdrup_transport(coads_mean_stress["taux"], coads_mean_stress["tauy"],
+                                relief=relief, basins="earth")
+    st = ds.row_status.sel(basin="pacific")
+    assert (st.sel(lat=slice(58, 64)) == 9).all()
+    assert (st.sel(lat=slice(15, 45)) == 0).all()
+    assert (ds.row_status.sel(basin="atlantic", lat=slice(15, 45)) == 0).all()
+    # Without relief there is no caution: the status comes from the relief alone.
+    plain = sverdrup_transport(coads_mean_stress["taux"], coads_mean_stress["tauy"],
+                               basins="earth", island_rule=False)
+    assert not (plain.row_status == 9).any()
 
 
 @pytest.mark.realdata
