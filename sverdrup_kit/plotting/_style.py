@@ -63,8 +63,18 @@ REASONS = {
     "equatorial_band": Shade("equatorial band (Ekman ~ 1/f, equatorial dynamics)", "#ececec",
                              "...."),
     "no_eastern_coast": Shade("no eastern coast", "#ececec", "\\\\\\"),
+    "no_western_coast": Shade("no western coast", "#ececec", "///"),
     "too_narrow": Shade("basin too narrow", "#ececec", "xxxx"),
+    "spans_half_globe": Shade("row spans over half the globe", "#ececec", "----"),
+    "spans_two_oceans": Shade("row spans two oceans", "#ececec", "oo"),
+    "pole_row": Shade("pole row", "#ececec", "**"),
     "outside": Shade("outside the basins", "#f7f7f7", "||||"),
+    # Cautions: the transport is computed and drawn, on a pale warm ground that sets them
+    # apart from the rows left empty.
+    "poleward_of_circumpolar": Shade("caution: poleward of the circumpolar band", "#fbefc9",
+                                     "\\\\"),
+    "over_shelf": Shade("caution: over a shelf", "#fbefc9", "o"),
+    "mostly_filled": Shade("caution: stress mostly filled", "#fbefc9", ".."),
 }
 
 
@@ -86,7 +96,8 @@ def reason_style(meaning: str) -> Shade:
 
 
 def shade_row_status(ax, lat, status, meanings, handles, *, axis="x", zorder=0):
-    """Shade the runs of rows whose status says the Sverdrup relation was not applied.
+    """Shade the runs of rows whose status says the Sverdrup relation was not applied, or
+    was applied with a caution.
 
     ``lat`` (n,) and ``status`` (n,) of one basin; ``meanings`` maps flag values to names.
     Spans run along x (``axvspan``, latitude on the x axis) or y (``axhspan``); legend handles

@@ -32,3 +32,22 @@ def test_functions_never_show(strict, result, monkeypatch):
     monkeypatch.setattr(plt, "show", fail)
     plotting.map_sverdrup_streamfunction(result)
     plotting.plot_latitude_time(result.interior_transport_by_time, basin="Lissom Ocean")
+
+
+def test_every_row_status_has_its_own_shading():
+    # Each reason a row is left empty or cautioned must be told apart on a figure: its own
+    # hatch and ground, and its own legend label (common practice: one legend entry per
+    # meaning). The cautions (rows drawn with a value) share a ground of their own.
+    from sverdrup_kit.geometry.rows import ROW_STATUS
+    from sverdrup_kit.physics.model_grid import BAND_STATUS
+    from sverdrup_kit.plotting._style import REASONS, SKIP_REASONS
+
+    meanings = {m for m, _ in ROW_STATUS.values()} | {m for m, _ in BAND_STATUS.values()}
+    shown = sorted(meanings - SKIP_REASONS)
+    missing = [m for m in shown if m not in REASONS]
+    assert not missing, missing
+    looks = [(REASONS[m].facecolor, REASONS[m].hatch) for m in shown]
+    assert len(set(looks)) == len(looks)
+    assert len({REASONS[m].label for m in shown}) == len(shown)
+    cautions = [m for m, why in ROW_STATUS.values() if why.startswith("caution")]
+    assert cautions and {REASONS[m].facecolor for m in cautions} == {"#fbefc9"}
