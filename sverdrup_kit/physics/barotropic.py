@@ -68,7 +68,6 @@ import warnings
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.ndimage as ndi
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 import xarray as xr
@@ -78,6 +77,7 @@ from .._apply import whole_fields
 from ..errors import InputError
 from ..geometry.coords import check_same_grid, from_canonical, require_dataarray, to_canonical
 from ..geometry.grid import SphericalGrid
+from ..geometry.land import label_land
 from ..io.units import to_si
 from .boundary_layers import munk_width, stommel_width
 
@@ -406,25 +406,8 @@ def _land_masses(land, periodic, islands, area, touch) -> np.ndarray:
     land mass by area; a land mass that no flux can reach (``touch`` is False on all its
     points: the rows beyond a pole) joins the main coast, as its value does not matter.
     """
-    lab, nlab = ndi.label(land, structure=np.ones((3, 3), bool))
-    if periodic and nlab:
-        # Join labels across the seam (including diagonal neighbours there).
-        parent = np.arange(nlab + 1)
-
-        def find(a):
-            while parent[a] != a:
-                parent[a] = parent[parent[a]]
-                a = parent[a]
-            return a
-
-        ny = lab.shape[0]
-        for di in (-1, 0, 1):
-            rows = np.arange(max(0, -di), min(ny, ny - di))
-            for p, q in zip(lab[rows, -1], lab[rows + di, 0]):
-                if p and q:
-                    parent[find(p)] = find(q)
-        roots = np.array([find(k) for k in range(nlab + 1)])
-        lab = roots[lab]
+    lab, _ = label_land(land, periodic=periodic, connectivity=8)
+    lab = lab + 1  # 0 off land, 1..k the land masses
     frame = np.zeros_like(land)
     frame[:_PAD] = frame[-_PAD:] = True
     if periodic:
