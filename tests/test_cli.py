@@ -94,13 +94,16 @@ def test_real_climatology_runs_and_warnings_are_one_line(marine_climatology, tmp
 
 @pytest.mark.realdata
 def test_global_product_with_default_basins_has_no_row_across_two_oceans(marine_climatology,
-                                                                        tmp_path, capsys):
+                                                                        tmp_path, capsys,
+                                                                        monkeypatch):
     # Issue 10: with no --basins, a global Earth product gets the Earth basins, and no valid
     # row of the written results spans more than half the globe or runs south of the capes
     # from one ocean into the next (common practice: the Atlantic, Pacific and Indian basins
     # end at the latitudes of Cape Agulhas, Tasmania and Cape Horn, Times Atlas of the World).
     from sverdrup_kit import open_results
+    from sverdrup_kit.geometry import integral
 
+    monkeypatch.setattr(integral, "_NOTICE_GIVEN", False)  # the notice is given once a session
     code = main(["diagnose", str(marine_climatology), "--out", str(tmp_path), "--no-figures",
                  "--no-progress"])
     err = capsys.readouterr().err
