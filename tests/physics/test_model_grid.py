@@ -413,3 +413,125 @@ def test_earth_basins_reach_the_model_grid(etopo60):
     pac = row & (bid == names.index("pacific"))
     assert np.all((lo[atl] > 260) & (lo[atl] < 355))
     assert np.all((lo[pac] > 115) & (lo[pac] < 250))
+
+
+# --- land classes and the band integral on model grids (issue 14 with issue 10's rules) ----
+
+
+def _land(lat, lon):
+    """Invented land: a continent west of 0E (a 40-degree-wide block from 10N to 60N), a
+    large island (6 x 6 degrees at 33-39N, 30-36E: 3.7e5 km2, derived R^2 dlon (sin - sin))
+    and a small island (2 x 2 degrees at 24-26N, 40-42E: 4.5e4 km2)."""
+    lo = np.mod(lon, 360)
+    cont = (lo > 300) & (lat > 10) & (lat < 60)
+    big = (lo > 30) & (lo < 36) & (lat > 33) & (lat < 39)
+    small = (lo > 40) & (lo < 42) & (lat > 24) & (lat < 26)
+    outside = (lat < 10) | (lat > 60) | ((lo > 60) & (lo < 300))
+    return cont | big | small | outside
+
+
+def test_land_classes_on_a_rotated_grid_match_the_regular_grid():
+    # Source: the regular-grid island table of the same invented land (issue 10), and the
+    # derived areas of its boxes; cells of the model grid are 0.5 degree, so areas of the
+    # rasterised boxes agree within a few percent.
+    from sverdrup_kit.geometry.land import land_bodies
+
+    lat, lon, clat, clon = rotated_pole_grid(0.5, pole_lat=60.0, pole_lon=200.0)
+    grid = _grid(lat, lon, clat, clon)
+    land = _land(grid.lat, grid.lon)
+    lb = land_bodies(~land, grid, earth=False)
+    rl = np.arange(-89.75, 90, 0.5)
+    ro = np.arange(0.25, 360, 0.5)
+    rla, rlo = np.meshgrid(rl, ro, indexing="ij")
+    table = sk.island_table(xr.DataArray(~_land(rla, rlo), coords={"lat": rl, "lon": ro},
+                                         dims=("lat", "lon")))
+    for lat0, lon0, want_area in ((36.0, 33.0, 3.7e5), (25.0, 41.0, 4.5e4)):
+        j, i = grid.cell_of_point(lon0, lat0)
+        body = int(lb.labels[j, i])
+        reg = int(table.land_label.sel(lat=lat0 + 0.25, lon=lon0 + 0.25))
+        assert int(lb.body_class[body]) == int(table.land_class[reg])
+        assert lb.area_km2[body] == pytest.approx(float(table.area_km2[reg]), rel=0.05)
+        assert lb.area_km2[body] == pytest.approx(want_area, rel=0.1)
+    assert int(lb.body_class[lb.labels[grid.cell_of_point(33.0, 36.0)]]) == 2
+    assert int(lb.body_class[lb.labels[grid.cell_of_point(41.0, 25.0)]]) == 1
+
+
+def test_small_island_crossed_large_island_starts_a_new_run():
+    # Source: the toolkit's regular-grid integral on the same invented land and winds
+    # (issue 10's rules); 2% per band as for issue 14's other band checks.
+    lat, lon, clat, clon = rotated_pole_grid(0.5, pole_lat=60.0, pole_lon=200.0)
+    grid = _grid(lat, lon, clat, clon)
+    land = _land(grid.lat, grid.lon)
+    tau = -0.1 * np.cos(np.deg2rad(4.0 * (grid.lat - 15)))
+    tx = as_field(np.where(land, np.nan, tau), grid.lat, grid.lon)
+    ds = model_grid_sverdrup(tx, 0 * tx, grid=grid, band_width=1.0)
+    rl, ro = np.arange(-89.5, 90, 1.0), np.arange(0.5, 360, 1.0)
+    rla, rlo = np.meshgrid(rl, ro, indexing="ij")
+    rtau = -0.1 * np.cos(np.deg2rad(4.0 * (rla - 15)))
+    rtx = xr.DataArray(np.where(_land(rla, rlo), np.nan, rtau), coords={"lat": rl, "lon": ro},
+                       dims=("lat", "lon"), attrs={"units": "Pa"})
+    reg = sk.sverdrup_transport(rtx, 0 * rtx, island_rule=False)
+    got, want = ds.interior_transport.isel(basin=0), reg.interior_transport.isel(basin=0)
+    for band in (25.5, 35.5, 45.5):
+        assert float(got.sel(lat=band)) == pytest.approx(float(want.sel(lat=band)), rel=0.02)
+    # The small island is crossed: its cells are counted and carry V.
+    small = ds.land_class.values == 1
+    assert small.any() and np.all(ds.integration_class.values[small] == 1)
+    assert np.all(np.isfinite(ds.sverdrup_northward_transport.values[small]))
+    # The large island starts a new run: the streamfunction just west of it is near zero,
+    # while the run east of it (to 60E) has gathered several Sv.
+    row = np.abs(grid.lat - 36.0) < 0.3
+    lo = np.mod(grid.lon, 360)
+    psi = ds.sverdrup_streamfunction.values
+    west = row & (lo > 28.5) & (lo < 30)
+    east = row & (lo > 36) & (lo < 37.5)
+    assert np.nanmax(np.abs(psi[west])) < 0.1 * np.nanmax(np.abs(psi[east]))
+    assert int(ds.row_status.isel(basin=0).sel(lat=35.5)) == 0
+
+
+@pytest.fixture(scope="module")
+def earth_on_a_rotated_grid(etopo60):
+    relief = xr.open_dataset(etopo60)["ROSE"].load()
+    rl = relief.rename({relief.dims[0]: "lat", relief.dims[1]: "lon"})
+    lat, lon, clat, clon = rotated_pole_grid(1.0, pole_lat=50.0, pole_lon=160.0)
+    grid = _grid(lat, lon, clat, clon)
+    lon0 = float(rl.lon.min())
+    at = dict(lat=xr.DataArray(lat, dims=("y", "x")),
+              lon=xr.DataArray(lon0 + np.mod(lon - lon0, 360.0), dims=("y", "x")))
+    ocean = (rl.sel(**at, method="nearest") < 0).values
+    tx = as_field(np.where(ocean, -0.05 * np.cos(np.deg2rad(3 * lat)), np.nan), lat, lon)
+    return grid, ocean, sk.sverdrup_transport(tx, 0 * tx, basins="earth", ocean_mask=ocean)
+
+
+@pytest.mark.realdata
+def test_earth_islands_on_a_rotated_grid(earth_on_a_rotated_grid):
+    # Times Atlas of the World (from memory), as on regular grids (issue 10): Luzon, Taiwan,
+    # Sumatra and Great Britain are islands, and Greenland is not part of North America.
+    from sverdrup_kit.geometry.land import land_bodies
+
+    grid, ocean, _ = earth_on_a_rotated_grid
+    lb = land_bodies(ocean, grid)
+    body = {n: int(lb.labels[grid.cell_of_point(*p)])
+            for n, p in sk.geometry.earth.EARTH_LANDMARKS.items()
+            if grid.cell_of_point(*p) is not None}
+    for name in ("Luzon", "Taiwan", "Sumatra", "Great Britain"):
+        assert body[name] >= 0 and body[name] != body["Eurasia"], name
+        assert int(lb.body_class[body[name]]) in (1, 2), name
+    assert body["Greenland"] != body["North America"]
+    assert int(lb.body_class[body["Greenland"]]) == 2
+    assert "Greenland" in lb.names[body["Greenland"]]
+
+
+@pytest.mark.realdata
+def test_earth_seas_on_a_rotated_grid(earth_on_a_rotated_grid):
+    # Times Atlas of the World / common practice, as on regular grids (issue 10): the Bay of
+    # Bengal and the Labrador Sea are counted in the Indian and Atlantic interiors, the
+    # Persian Gulf is not.
+    grid, _, ds = earth_on_a_rotated_grid
+    ic = ds.integration_class.values
+    for lon0, lat0, counted in ((89.0, 15.0, True), (305.0, 59.0, True), (51.0, 27.0, False)):
+        j, i = grid.cell_of_point(lon0, lat0)
+        assert (ic[j, i] == 1) == counted, (lon0, lat0, ic[j, i])
+    assert "bay_of_bengal" in ds.crossed_seas.sel(basin="indian", lat=15.5).item()
+    assert "labrador_sea" in ds.crossed_seas.sel(basin="atlantic", lat=59.5).item()
+    assert ds.attrs["basins"] == "earth"
