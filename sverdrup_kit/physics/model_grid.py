@@ -15,11 +15,21 @@ circles, a displaced pole or a folded tripolar cap) the operators work on the mo
 - the streamfunction is the same sum taken westward from the band's eastern coast, cell by
   cell in order of longitude.
 
+Land, basins and seas follow the regular grids' rules (issue 10), worked out on the model's
+own cells by :mod:`sverdrup_kit.geometry.bands`: land bodies are labelled through the grid's
+neighbours (seam and fold included) and classed by their areas from the model's cells; the Earth
+basins and seas come from the same dividing lines, straits and outlines; in each band a basin's
+water splits into runs at land, small islands are crossed (their stress filled from the ocean
+round them), runs either side of one large island count together, and runs cut off by a
+continent or an excluded sea are marginal seas, not counted. The band status uses the regular
+grids' ``row_status`` flags.
+
 What is approximate here (and exact on regular grids with the regular-grid functions): next to
-land and at the edge of the grid the curl is first-order; a band's cells are integrated as one
-run from its eastern coast (the widest gap of land in longitude), islands inside the band are
-crossed, marginal seas are not told apart from the open basin unless the user's ``basins``
-leave them out; a band with no land gap is left empty (``no_eastern_coast``).
+land and at the edge of the grid the curl is first-order; which cells a band counts is decided by
+their centres, so a coast that cuts a band obliquely may count a cell in one band and not the
+next; the streamfunction is a band mean. Not available on model grids: Godfrey's island rule
+(the streamfunction restarts at zero west of each large island), the ``over_shelf`` and
+``mostly_filled`` cautions, and the automatic split of one connected ocean at a continent's tip.
 """
 
 from __future__ import annotations
