@@ -299,7 +299,16 @@ class CurvilinearGrid:
 
     def _mirror_matches(self) -> bool:
         top = self.corners_xyz[-1]
-        return bool(self.periodic and np.allclose(top, top[::-1], atol=1e-6))
+        if self.periodic and np.allclose(top, top[::-1], atol=1e-6):
+            return True
+        if not self.periodic or self._given_corners or self.shape[0] < 2:
+            return False
+        # Without bounds: a folded last row faces its mirror image across the fold, one row
+        # spacing away, as it faces the row below.
+        last = self.xyz[-1]
+        across = np.linalg.norm(last - last[::-1], axis=-1)
+        below = np.linalg.norm(last - self.xyz[-2], axis=-1)
+        return bool(np.all(across < 1.5 * np.median(below)))
 
     # --- geometry ---------------------------------------------------------------------------
 
