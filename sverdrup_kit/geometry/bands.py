@@ -196,7 +196,7 @@ def _continent_arcs(land: LandBodies, lat, lon, band_of):
     return arcs
 
 
-def plan_bands(grid, ocean, land: LandBodies, bid, n_basins, *, band_width=None,
+def plan_bands(grid, land: LandBodies, bid, n_basins, *, band_width=None,
                equatorial_half_width=3.0, min_width_km=500.0, excluded=None,
                counted_sea=None, sea_id=None, sea_names=(), coast_cells=None,
                gap_factor=1.25) -> BandPlan:
@@ -627,7 +627,7 @@ def model_geometry(grid, ocean, *, basins=None, island_min_area_km2, continent_m
             f"or a mask that shows the Earth's continents), found basins={basins!r}. "
             "Fix: drop seas=, or pass basins='earth'."
         )
-    plan = plan_bands(grid, ocean, land, bid, len(names), band_width=band_width,
+    plan = plan_bands(grid, land, bid, len(names), band_width=band_width,
                       equatorial_half_width=equatorial_half_width, min_width_km=min_width_km,
                       excluded=excluded, counted_sea=counted, sea_id=sea_id,
                       sea_names=sea_names, coast_cells=coast_cells)
