@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 
 
-def fill_from_neighbours_numpy(a, *, target, periodic):
+def fill_from_neighbours_numpy(a, *, target, periodic, neighbour=None):
     """Fill missing values of ``a`` inside ``target`` by repeated nearest-ocean averaging.
 
     Parameters
@@ -23,6 +23,10 @@ def fill_from_neighbours_numpy(a, *, target, periodic):
         are set to NaN and never used.
     periodic : bool
         Longitude wraps.
+    neighbour : callable, optional
+        ``neighbour(a, side)``: values at each cell's neighbour on side E, W, N or S, NaN
+        beyond the grid (a model grid's own, with its seam and fold); default the rows and
+        columns of a latitude-longitude grid.
 
     Returns
     -------
@@ -39,12 +43,16 @@ def fill_from_neighbours_numpy(a, *, target, periodic):
         total = np.zeros_like(out)
         count = np.zeros_like(out)
         for axis, k in ((-1, 1), (-1, -1), (-2, 1), (-2, -1)):
-            nb = np.roll(out, k, axis=axis)
-            if axis == -2:
-                edge = (0 if k == 1 else -1)
-                nb[..., edge, :] = np.nan
-            elif not periodic:
-                nb[..., :, 0 if k == 1 else -1] = np.nan
+            if neighbour is not None:
+                nb = neighbour(out, {(-1, 1): "W", (-1, -1): "E", (-2, 1): "S",
+                                     (-2, -1): "N"}[(axis, k)])
+            else:
+                nb = np.roll(out, k, axis=axis)
+                if axis == -2:
+                    edge = (0 if k == 1 else -1)
+                    nb[..., edge, :] = np.nan
+                elif not periodic:
+                    nb[..., :, 0 if k == 1 else -1] = np.nan
             ok = np.isfinite(nb)
             total += np.where(ok, nb, 0.0)
             count += ok

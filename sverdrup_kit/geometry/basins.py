@@ -89,9 +89,11 @@ EARTH_DIVIDING_LINES = {
     # Strait and the Lesser Sunda chain (Lombok, Ombai and Timor passages join the Pacific side
     # to the Indian side), then across the Timor Sea to Australia near Darwin. The Andaman Sea,
     # Strait of Malacca and Timor Sea are Indian; the South China, Java, Banda and Arafura Seas
-    # are Pacific (our choice, close to the usual hydrographic one).
+    # are Pacific (our choice, close to the usual hydrographic one). The line starts in
+    # Thailand at 18N, north of the Kra Isthmus, so that masks whose coarse coastal cells
+    # join the Andaman Sea and the Gulf of Thailand cannot leak round its end.
     "indonesia": [
-        (99.0, 15.0), (100.5, 5.5), (101.5, 0.5), (105.5, -5.0), (106.5, -6.5),
+        (98.8, 18.0), (99.0, 15.0), (100.5, 5.5), (101.5, 0.5), (105.5, -5.0), (106.5, -6.5),
         (114.5, -8.0), (116.3, -8.6), (118.0, -8.6), (121.0, -8.6), (124.5, -9.5),
         (126.0, -8.8), (131.5, -12.8), (134.0, -20.0),
     ],
@@ -159,21 +161,43 @@ def _nearest_water(water, grid, lon0, lat0, max_cells=3):
     return None if best is None else best[1:]
 
 
+def _nearest_water_on_model_grid(water, grid, lon0, lat0, max_cells=3):
+    """The water cell nearest to (lon0, lat0) within ``max_cells`` nominal cells, or None."""
+    from .curvilinear import _unit
+
+    k = min(water.size, (2 * max_cells + 1) ** 2)
+    d, idx = grid._tree.query(_unit(lat0, lon0), k=k)
+    near = np.atleast_1d(idx)[np.atleast_1d(d) <= max_cells * np.deg2rad(grid.nominal_spacing)]
+    wet = near[water.ravel()[near]]
+    return None if wet.size == 0 else np.unravel_index(int(wet[0]), water.shape)
+
+
 def _earth_basins(water, grid):
+    """Basin numbers of the Earth basins on ``water`` (ny, nx), the names, and the links that
+    stand for a coast: (ny, nx) ``coast_e`` on a regular grid, ``{"E": ..., "N": ...}`` on a
+    model grid (whose water is labelled through the grid's own neighbours)."""
     if not grid.periodic:
         raise GridError(
             "basins: 'earth' needs a global grid whose longitudes close the circle, found "
             f"{grid!r}. Fix: pass a global field, or give your own basins as masks or polygons."
         )
-    cut_e, cut_n = line_cuts(grid, EARTH_DIVIDING_LINES.values())
-    coast_e, _ = line_cuts(grid, [EARTH_DIVIDING_LINES[k] for k in EARTH_COASTAL_LINES])
-    labels, _ = label_cells(water, periodic=True, cut_east=cut_e, cut_north=cut_n)
+    coastal = [EARTH_DIVIDING_LINES[k] for k in EARTH_COASTAL_LINES]
+    if np.ndim(grid.lat) == 2:
+        cuts = grid.link_cuts(EARTH_DIVIDING_LINES.values())
+        coast_e = grid.link_cuts(coastal)
+        labels, _ = grid.components(water, cut=cuts)
+        nearest = _nearest_water_on_model_grid
+    else:
+        cut_e, cut_n = line_cuts(grid, EARTH_DIVIDING_LINES.values())
+        coast_e, _ = line_cuts(grid, coastal)
+        labels, _ = label_cells(water, periodic=True, cut_east=cut_e, cut_north=cut_n)
+        nearest = _nearest_water
     names = list(EARTH_BASIN_SEEDS)
     comp_of = {}
     for name, seeds in EARTH_BASIN_SEEDS.items():
         comps = set()
         for lon0, lat0 in seeds:
-            hit = _nearest_water(water, grid, lon0, lat0)
+            hit = nearest(water, grid, lon0, lat0)
             if hit is None:
                 raise GridError(
                     f"basins: 'earth' found land around ({lon0:g}E, {lat0:g}N), which should "
@@ -304,19 +328,26 @@ def _user_basins(basins, water, grid, layout, ref):
     )
 
 
-def _islands_join_basins(basin, cls, land_labels, periodic):
+def _islands_join_basins(basin, cls, land_labels, grid):
     """Give a small island the basin of the water around it when that water is one basin."""
     small = cls == SMALL_ISLAND
     if not (small & (basin < 0)).any():
         return basin
     pairs = []
+    model = np.ndim(grid.lat) == 2
     for axis, k in ((0, 1), (0, -1), (1, 1), (1, -1)):
-        nb_basin = np.roll(basin, k, axis=axis)
-        nb_ocean = np.roll(cls == OCEAN, k, axis=axis)
-        if axis == 0:
-            nb_ocean[0 if k == 1 else -1] = False
-        elif not periodic:
-            nb_ocean[:, 0 if k == 1 else -1] = False
+        if model:
+            side = {(0, 1): "S", (0, -1): "N", (1, 1): "W", (1, -1): "E"}[(axis, k)]
+            nb = grid.neighbour(np.where(cls == OCEAN, basin, -2), side)
+            nb_ocean = np.isfinite(nb) & (nb != -2)
+            nb_basin = np.where(nb_ocean, nb, -1).astype(np.int64)
+        else:
+            nb_basin = np.roll(basin, k, axis=axis)
+            nb_ocean = np.roll(cls == OCEAN, k, axis=axis)
+            if axis == 0:
+                nb_ocean[0 if k == 1 else -1] = False
+            elif not grid.periodic:
+                nb_ocean[:, 0 if k == 1 else -1] = False
         ok = small & nb_ocean
         pairs.append(np.column_stack([land_labels[ok], nb_basin[ok]]))
     p = np.concatenate(pairs)
@@ -403,12 +434,23 @@ def _components(n, pairs):
 
 
 def _polygon_cells(grid, verts):
-    """Cells whose centres lie inside a (lon, lat) polygon, checked only in its bounding box."""
+    """Cells whose centres lie inside a (lon, lat) polygon, checked only in its bounding box
+    (on a regular or a model grid)."""
     from matplotlib.path import Path
 
     v = np.asarray(verts, dtype=np.float64)
     path = Path(v)
     lat, lon = grid.lat, grid.lon
+    if lat.ndim == 2:
+        inside = np.zeros(lat.shape, dtype=bool)
+        lon = np.mod(lon, 360.0)
+        near = (lat >= v[:, 1].min()) & (lat <= v[:, 1].max())
+        for shift in (-360.0, 0.0, 360.0):
+            pick = near & (lon + shift >= v[:, 0].min()) & (lon + shift <= v[:, 0].max())
+            if pick.any():
+                pts = np.column_stack([lon[pick] + shift, lat[pick]])
+                inside[pick] |= path.contains_points(pts)
+        return inside
     rows = np.flatnonzero((lat >= v[:, 1].min()) & (lat <= v[:, 1].max()))
     inside = np.zeros(grid.shape, dtype=bool)
     if rows.size == 0:
@@ -479,7 +521,7 @@ def assign_basins(basins, water, grid, layout, ref, cls, land_labels, *, min_are
         bid, names, coast_e = _earth_basins(water, grid)
     else:
         bid, names = _user_basins(basins, water, grid, layout, ref)
-    bid = _islands_join_basins(bid, cls, land_labels, grid.periodic)
+    bid = _islands_join_basins(bid, cls, land_labels, grid)
     if not (bid >= 0).any():
         raise ValueError(
             "basins: no ocean cell lies in any basin. Fix: check that the basin masks or "

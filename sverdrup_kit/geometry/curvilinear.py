@@ -113,6 +113,26 @@ def _triangle_area(a, b, c):
     return 2.0 * np.arctan2(num, den)
 
 
+def _segments_cross(xa, ya, xb, yb, x1, y1, x2, y2):
+    """Whether segments (xa, ya)-(xb, yb) (arrays) properly cross segment (x1, y1)-(x2, y2),
+    in the plane; a link that ends exactly on the line counts on one side only."""
+    def side(px, py, qx, qy, rx, ry):
+        return (qx - px) * (ry - py) - (qy - py) * (rx - px)
+
+    box = ((np.minimum(xa, xb) <= max(x1, x2)) & (np.maximum(xa, xb) >= min(x1, x2))
+           & (np.minimum(ya, yb) <= max(y1, y2)) & (np.maximum(ya, yb) >= min(y1, y2)))
+    out = np.zeros(xa.shape, dtype=bool)
+    if not box.any():
+        return out
+    a, b, c, d = xa[box], ya[box], xb[box], yb[box]
+    d1 = side(x1, y1, x2, y2, a, b)
+    d2 = side(x1, y1, x2, y2, c, d)
+    d3 = side(a, b, c, d, x1, y1)
+    d4 = side(a, b, c, d, x2, y2)
+    out[box] = ((d1 > 0) != (d2 > 0)) & ((d3 > 0) != (d4 > 0))
+    return out
+
+
 def _corners_from_bounds(blat, blon):
     """(ny, nx, 4) CF vertices (anticlockwise from the south-west) -> (ny+1, nx+1) corners."""
     ny, nx = blat.shape[:2]
@@ -279,7 +299,16 @@ class CurvilinearGrid:
 
     def _mirror_matches(self) -> bool:
         top = self.corners_xyz[-1]
-        return bool(self.periodic and np.allclose(top, top[::-1], atol=1e-6))
+        if self.periodic and np.allclose(top, top[::-1], atol=1e-6):
+            return True
+        if not self.periodic or self._given_corners or self.shape[0] < 2:
+            return False
+        # Without bounds: a folded last row faces its mirror image across the fold, one row
+        # spacing away, as it faces the row below.
+        last = self.xyz[-1]
+        across = np.linalg.norm(last - last[::-1], axis=-1)
+        below = np.linalg.norm(last - self.xyz[-2], axis=-1)
+        return bool(np.all(across < 1.5 * np.median(below)))
 
     # --- geometry ---------------------------------------------------------------------------
 
@@ -402,6 +431,107 @@ class CurvilinearGrid:
         else:
             raise ValueError(f"side: expected one of 'E', 'W', 'N', 'S', found {side!r}.")
         return out
+
+    def components(self, mask, *, cut=None, diagonal=False):
+        """Connected components of the True cells of ``mask`` (ny, nx) through the grid's own
+        neighbours (faces, the periodic seam and the north fold).
+
+        ``cut``: dict side (``"E"``, ``"N"``) -> (ny, nx) bool, links removed between a cell
+        and its neighbour on that side (:meth:`link_cuts`). ``diagonal``: also join cells that
+        share only a corner (the north-eastern and north-western neighbours). Returns labels
+        (0..n-1 on True cells, -1 elsewhere) and n.
+        """
+        from scipy.sparse import coo_matrix
+        from scipy.sparse.csgraph import connected_components
+
+        mask = np.asarray(mask, dtype=bool)
+        n = mask.size
+        index = np.arange(n, dtype=np.float64).reshape(mask.shape)
+        wet = np.where(mask, index, np.nan)
+        cut = cut or {}
+        steps = [(("E",), cut.get("E")), (("N",), cut.get("N"))]
+        if diagonal:
+            steps += [(("N", "E"), None), (("N", "W"), None)]
+        src, dst = [], []
+        for sides, removed in steps:
+            other = wet
+            for side in sides:
+                other = self.neighbour(other, side)
+            link = mask & np.isfinite(other)
+            if removed is not None:
+                link &= ~removed
+            src.append(index[link].astype(np.int64))
+            dst.append(other[link].astype(np.int64))
+        src, dst = np.concatenate(src), np.concatenate(dst)
+        graph = coo_matrix((np.ones(src.size, dtype=np.int8), (src, dst)), shape=(n, n))
+        _, comp = connected_components(graph, directed=False)
+        uniq, inv = np.unique(comp[mask.ravel()], return_inverse=True)
+        labels = np.full(n, -1, dtype=np.int64)
+        labels[mask.ravel()] = inv
+        return labels.reshape(mask.shape), int(uniq.size)
+
+    def link_cuts(self, lines) -> dict:
+        """Links between neighbouring cell centres that cross any of ``lines``.
+
+        ``lines``: iterable of (lon, lat) vertex lists in degrees (longitudes may run past
+        360). Returns ``{"E": cut_e, "N": cut_n}``, (ny, nx) bool each: True where the link
+        from a cell to its eastern (northern) neighbour crosses a line. Links and lines are
+        taken as straight segments in longitude and latitude, as on regular grids.
+        """
+        lat, lon = self.lat, self.lon
+        out = {}
+        for side in ("E", "N"):
+            lat2 = self.neighbour(lat, side)
+            lon2 = self.neighbour(lon, side)
+            ok = np.isfinite(lat2)
+            ya, xa = lat[ok], np.mod(lon[ok], 360.0)
+            yb = lat2[ok]
+            xb = xa + (np.mod(lon2[ok] - lon[ok] + 180.0, 360.0) - 180.0)
+            hit = np.zeros(ya.size, dtype=bool)
+            for verts in lines:
+                v = np.asarray(verts, dtype=np.float64)
+                for (x1, y1), (x2, y2) in zip(v[:-1], v[1:]):
+                    for shift in (-720.0, -360.0, 0.0, 360.0):
+                        hit |= _segments_cross(xa, ya, xb, yb, x1 + shift, y1, x2 + shift, y2)
+            cut = np.zeros(self.shape, dtype=bool)
+            cut[ok] = hit
+            out[side] = cut
+        return out
+
+    @cached_property
+    def boundary_cells(self) -> np.ndarray:
+        """(ny, nx) bool: cells on an open edge of the grid (the first row, the last row
+        unless folded, the first and last columns unless periodic)."""
+        edge = np.zeros(self.shape, dtype=bool)
+        edge[0] = True
+        if not self.north_fold:
+            edge[-1] = True
+        if not self.periodic:
+            edge[:, 0] = edge[:, -1] = True
+        return edge
+
+    @cached_property
+    def _tree(self):
+        from scipy.spatial import cKDTree
+
+        return cKDTree(self.xyz.reshape(-1, 3))
+
+    def cell_of_point(self, lon0: float, lat0: float):
+        """(j, i) of the cell whose centre lies nearest to (lon0, lat0), or None when the
+        point lies farther than two nominal cell sizes from every centre (off the grid)."""
+        d, k = self._tree.query(_unit(lat0, lon0))
+        if d > 2.0 * np.deg2rad(self.nominal_spacing):
+            return None
+        return tuple(int(x) for x in np.unravel_index(int(k), self.shape))
+
+    @cached_property
+    def lon_extent(self) -> np.ndarray:
+        """Longitude extent of each cell, degrees east (ny, nx): the spread of its corners'
+        longitudes round its centre's."""
+        _, clon = self.corners_latlon
+        corners = np.stack([clon[:-1, :-1], clon[:-1, 1:], clon[1:, 1:], clon[1:, :-1]])
+        rel = np.mod(corners - self.lon[None] + 180.0, 360.0) - 180.0
+        return rel.max(axis=0) - rel.min(axis=0)
 
     def __repr__(self) -> str:
         return (f"CurvilinearGrid({self.shape[0]} x {self.shape[1]}, periodic={self.periodic}, "

@@ -277,20 +277,30 @@ def cell_of_point(lat, lon, lon0, lat0):
     return _nearest_cell(lat, lon, lon0, lat0)
 
 
-def looks_like_earth(ocean, lat, lon, *, periodic) -> bool:
+def looks_like_earth(ocean, lat, lon, *, periodic, cell_of=None) -> bool:
     """Whether an ocean mask (ny, nx) on a global grid shows the real Earth's continents.
 
     True when the grid closes the circle of longitude, spans 70S to 70N, and the mask agrees
-    with at least :data:`EARTH_PROBE_AGREEMENT` of the :data:`EARTH_PROBES`.
+    with at least :data:`EARTH_PROBE_AGREEMENT` of the :data:`EARTH_PROBES`. ``lat``, ``lon``
+    are the 1-D axes of a regular grid, or the 2-D centres of a model grid with ``cell_of``
+    (``cell_of(lon0, lat0)`` -> (j, i) or None, e.g.
+    :meth:`~sverdrup_kit.geometry.curvilinear.CurvilinearGrid.cell_of_point`).
     """
     lat = np.asarray(lat, dtype=np.float64)
     lon = np.asarray(lon, dtype=np.float64)
-    if not periodic or lat[0] > -70.0 or lat[-1] < 70.0:
+    if cell_of is None:
+        lat_lo, lat_hi = lat[0], lat[-1]
+
+        def cell_of(lon0, lat0):
+            return _nearest_cell(lat, lon, lon0, lat0)
+    else:
+        lat_lo, lat_hi = lat.min(), lat.max()
+    if not periodic or lat_lo > -70.0 or lat_hi < 70.0:
         return False
     hits, total = 0, 0
     for want, points in (("land", EARTH_PROBES["land"]), ("ocean", EARTH_PROBES["ocean"])):
         for lon0, lat0 in points:
-            j, i = _nearest_cell(lat, lon, lon0, lat0)
+            cell = cell_of(lon0, lat0)
             total += 1
-            hits += bool(ocean[j, i]) == (want == "ocean")
+            hits += cell is not None and bool(ocean[cell]) == (want == "ocean")
     return hits >= EARTH_PROBE_AGREEMENT * total

@@ -178,6 +178,12 @@ class SphericalGrid:
         band = np.diff(np.sin(np.deg2rad(self.lat_edges)))
         return self.radius**2 * band[:, None] * self.dlon_rad[None, :]
 
+    def cell_of_point(self, lon0: float, lat0: float):
+        """(j, i) of the cell whose centre lies nearest to (lon0, lat0), or None off the grid."""
+        from .earth import cell_of_point
+
+        return cell_of_point(self.lat, self.lon, lon0, lat0)
+
     def equatorial_mask(self, half_width: float) -> np.ndarray:
         """Boolean (ny,) mask of rows within ``half_width`` degrees of the equator."""
         return np.abs(self.lat) < half_width

@@ -29,7 +29,7 @@ from scipy import ndimage
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
-from .earth import EARTH_LANDMARKS, EARTH_STRAITS, cell_of_point, looks_like_earth
+from .earth import EARTH_LANDMARKS, EARTH_STRAITS, looks_like_earth
 from .grid import SphericalGrid
 from .lines import label_cells, line_cuts
 
@@ -77,13 +77,17 @@ class LandBodies:
     cut_by_edge: np.ndarray
 
 
-def label_land(land, *, periodic, connectivity=4):
-    """Connected land bodies of a boolean (ny, nx) mask; labels -1 off land, and the count."""
+def _check_connectivity(connectivity):
     if connectivity not in (4, 8):
         raise ValueError(
             f"land_connectivity: expected 4 (faces) or 8 (faces and corners), found "
             f"{connectivity!r}. Fix: land_connectivity=4."
         )
+
+
+def label_land(land, *, periodic, connectivity=4):
+    """Connected land bodies of a boolean (ny, nx) mask; labels -1 off land, and the count."""
+    _check_connectivity(connectivity)
     structure = ndimage.generate_binary_structure(2, 1 if connectivity == 4 else 2)
     lab, n = ndimage.label(land, structure=structure)
     lab = lab.astype(np.int64) - 1
@@ -107,18 +111,27 @@ def label_land(land, *, periodic, connectivity=4):
 def _split_at_straits(land, labels, n, grid):
     """Relabel the bodies that a line of :data:`EARTH_STRAITS` runs through, without the links
     that cross it."""
-    cut_e, cut_n = line_cuts(grid, EARTH_STRAITS.values())
-    east = np.roll(labels, -1, axis=1)
-    if not grid.periodic:
-        east[:, -1] = -1
-    north = np.full_like(labels, -1)
-    north[:-1] = labels[1:]
+    if _is_model_grid(grid):
+        cuts = grid.link_cuts(EARTH_STRAITS.values())
+        cut_e, cut_n = cuts["E"], cuts["N"]
+        east = grid.neighbour(labels, "E")
+        north = grid.neighbour(labels, "N")
+    else:
+        cut_e, cut_n = line_cuts(grid, EARTH_STRAITS.values())
+        east = np.roll(labels, -1, axis=1)
+        if not grid.periodic:
+            east[:, -1] = -1
+        north = np.full_like(labels, -1)
+        north[:-1] = labels[1:]
     hit = np.concatenate([labels[cut_e & (labels >= 0) & (east == labels)],
                           labels[cut_n & (labels >= 0) & (north == labels)]])
     if hit.size == 0:
         return labels, n
     touched = np.isin(labels, np.unique(hit))
-    sub, m = label_cells(touched, periodic=grid.periodic, cut_east=cut_e, cut_north=cut_n)
+    if _is_model_grid(grid):
+        sub, m = grid.components(touched, cut={"E": cut_e, "N": cut_n})
+    else:
+        sub, m = label_cells(touched, periodic=grid.periodic, cut_east=cut_e, cut_north=cut_n)
     # Keep the untouched bodies' numbers, give the pieces new ones, then renumber densely.
     out = np.where(touched, n + sub, labels)
     present = np.zeros(n + m, dtype=bool)
@@ -128,7 +141,38 @@ def _split_at_straits(land, labels, n, grid):
     return res, int(present.sum())
 
 
-def _resolve_key(key, bodies_names, labels, lat, lon, argname):
+def _is_model_grid(grid) -> bool:
+    """Whether ``grid`` is a curvilinear model grid (2-D centres, its own neighbours)."""
+    return np.ndim(grid.lat) == 2
+
+
+def _label(land, grid, connectivity):
+    """Land bodies through the grid's neighbours: faces (4) or faces and corners (8)."""
+    if _is_model_grid(grid):
+        _check_connectivity(connectivity)
+        return grid.components(land, diagonal=connectivity == 8)
+    return label_land(land, periodic=grid.periodic, connectivity=connectivity)
+
+
+def _edge_bodies(labels, grid, n):
+    """Bodies cut by the edge of the grid (their size is unknown): regional grids' side
+    columns, rows that stop short of a pole; on model grids, cells on an open edge."""
+    edge = np.zeros(n, dtype=bool)
+    if _is_model_grid(grid):
+        at = labels[grid.boundary_cells]
+        edge[at[at >= 0]] = True
+        return edge
+    if not grid.periodic:
+        edge[labels[:, 0][labels[:, 0] >= 0]] = True
+        edge[labels[:, -1][labels[:, -1] >= 0]] = True
+    if grid.lat_edges[0] > -90.0 + 1e-6:
+        edge[labels[0][labels[0] >= 0]] = True
+    if grid.lat_edges[-1] < 90.0 - 1e-6:
+        edge[labels[-1][labels[-1] >= 0]] = True
+    return edge
+
+
+def _resolve_key(key, bodies_names, labels, grid, argname):
     """Body numbers selected by a name or a (lon, lat) point."""
     if isinstance(key, str):
         hit = [k for k, names in enumerate(bodies_names) if key in names]
@@ -148,7 +192,7 @@ def _resolve_key(key, bodies_names, labels, lat, lon, argname):
             f"{key!r}. Fix: e.g. {{'Luzon': 'large_island'}} or {{(121.0, 16.5): "
             "'large_island'}."
         ) from None
-    cell = cell_of_point(lat, lon, lon0, lat0)
+    cell = grid.cell_of_point(lon0, lat0)
     if cell is None or labels[cell] < 0:
         raise ValueError(
             f"{argname}: the point ({lon0:g}E, {lat0:g}N) lies "
@@ -158,18 +202,24 @@ def _resolve_key(key, bodies_names, labels, lat, lon, argname):
     return [int(labels[cell])]
 
 
-def land_bodies(ocean, grid: SphericalGrid, *, island_min_area_km2=ISLAND_MIN_AREA,
+def land_bodies(ocean, grid, *, island_min_area_km2=ISLAND_MIN_AREA,
                 continent_min_area_km2=CONTINENT_MIN_AREA, connectivity=4,
                 land_classes=None, earth=None) -> LandBodies:
     """Label, measure, name and classify the land bodies of a canonical ocean mask (ny, nx).
 
-    ``earth``: name the bodies by :data:`EARTH_LANDMARKS` (None: when the mask looks like the
-    Earth's). ``land_classes``: mapping of a body name or a (lon, lat) point to a class name.
+    ``grid``: a :class:`~sverdrup_kit.geometry.grid.SphericalGrid` or a
+    :class:`~sverdrup_kit.geometry.curvilinear.CurvilinearGrid`; on a model grid the bodies
+    join through the grid's own neighbours (the periodic seam and the north fold included),
+    their areas are sums of the model's cell areas, and landmarks and override points find
+    their cell as the nearest centre on the sphere. ``earth``: name the bodies by
+    :data:`EARTH_LANDMARKS` (None: when the mask looks like the Earth's). ``land_classes``:
+    mapping of a body name or a (lon, lat) point to a class name.
     """
     land = ~np.asarray(ocean, dtype=bool)
-    labels, n = label_land(land, periodic=grid.periodic, connectivity=connectivity)
+    labels, n = _label(land, grid, connectivity)
     if earth is None:
-        earth = looks_like_earth(~land, grid.lat, grid.lon, periodic=grid.periodic)
+        earth = looks_like_earth(~land, grid.lat, grid.lon, periodic=grid.periodic,
+                                 cell_of=grid.cell_of_point if _is_model_grid(grid) else None)
     if earth:
         labels, n = _split_at_straits(land, labels, n, grid)
     area = np.bincount(labels[land], weights=grid.cell_area[land] / 1e6, minlength=n)
@@ -179,14 +229,7 @@ def land_bodies(ocean, grid: SphericalGrid, *, island_min_area_km2=ISLAND_MIN_AR
     rank[order] = np.arange(n)
     labels = np.where(labels >= 0, rank[np.maximum(labels, 0)], -1)
     area = area[order]
-    edge = np.zeros(n, dtype=bool)
-    if not grid.periodic:
-        edge[labels[:, 0][labels[:, 0] >= 0]] = True
-        edge[labels[:, -1][labels[:, -1] >= 0]] = True
-    if grid.lat_edges[0] > -90.0 + 1e-6:
-        edge[labels[0][labels[0] >= 0]] = True
-    if grid.lat_edges[-1] < 90.0 - 1e-6:
-        edge[labels[-1][labels[-1] >= 0]] = True
+    edge = _edge_bodies(labels, grid, n)
     body = np.where(
         edge | (area >= continent_min_area_km2),
         CONTINENT,
@@ -197,7 +240,7 @@ def land_bodies(ocean, grid: SphericalGrid, *, island_min_area_km2=ISLAND_MIN_AR
     names = [[] for _ in range(n)]
     if earth:
         for name, (lon0, lat0) in EARTH_LANDMARKS.items():
-            cell = cell_of_point(grid.lat, grid.lon, lon0, lat0)
+            cell = grid.cell_of_point(lon0, lat0)
             if cell is not None and labels[cell] >= 0:
                 names[int(labels[cell])].append(name)
     if land_classes:
@@ -213,7 +256,7 @@ def land_bodies(ocean, grid: SphericalGrid, *, island_min_area_km2=ISLAND_MIN_AR
                     f"land_classes[{key!r}]: expected one of {sorted(_CLASS_OF_NAME)}, found "
                     f"{cname!r}. Fix: e.g. 'large_island'."
                 )
-            for k in _resolve_key(key, names, labels, grid.lat, grid.lon, "land_classes"):
+            for k in _resolve_key(key, names, labels, grid, "land_classes"):
                 body[k] = _CLASS_OF_NAME[cname]
                 source[k] = "land_classes argument"
     cls = np.full(land.shape, OCEAN, dtype=np.int8)

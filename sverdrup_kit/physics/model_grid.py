@@ -15,24 +15,38 @@ circles, a displaced pole or a folded tripolar cap) the operators work on the mo
 - the streamfunction is the same sum taken westward from the band's eastern coast, cell by
   cell in order of longitude.
 
+Land, basins and seas follow the regular grids' rules (issue 10), worked out on the model's
+own cells by :mod:`sverdrup_kit.geometry.bands`: land bodies are labelled through the grid's
+neighbours (seam and fold included) and classed by their areas from the model's cells; the Earth
+basins and seas come from the same dividing lines, straits and outlines; in each band a basin's
+water splits into runs at land, small islands are crossed (their stress filled from the ocean
+round them), runs either side of one large island count together, and runs cut off by a
+continent or an excluded sea are marginal seas, not counted. The band status uses the regular
+grids' ``row_status`` flags.
+
 What is approximate here (and exact on regular grids with the regular-grid functions): next to
-land and at the edge of the grid the curl is first-order; a band's cells are integrated as one
-run from its eastern coast (the widest gap of land in longitude), islands inside the band are
-crossed, marginal seas are not told apart from the open basin unless the user's ``basins``
-leave them out; a band with no land gap is left empty (``no_eastern_coast``).
+land and at the edge of the grid the curl is first-order; which cells a band counts is decided by
+their centres, so a coast that cuts a band obliquely may count a cell in one band and not the
+next; the streamfunction is a band mean. Not available on model grids: Godfrey's island rule
+(the streamfunction restarts at zero west of each large island), the ``over_shelf`` and
+``mostly_filled`` cautions, and the automatic split of one connected ocean at a continent's tip.
 """
 
 from __future__ import annotations
-
-from dataclasses import dataclass
 
 import numpy as np
 import xarray as xr
 
 from .. import _validate, constants
+from .._compiled.scan import fill_from_neighbours_numpy
 from .._compiled.stokes import band_sums, stokes_curl, westward_band_scan
 from ..errors import GridError, InputError
+from ..geometry.bands import model_geometry
+from ..geometry.basins import MIN_WIDTH, basin_id_attrs
 from ..geometry.curvilinear import CurvilinearGrid
+from ..geometry.land import (CONTINENT_MIN_AREA, ISLAND_MIN_AREA, LAND_CLASSES,
+                             SMALL_ISLAND)
+from ..geometry.rows import CELL_CLASS, ROW_STATUS
 
 __all__ = [
     "model_grid_curl",
@@ -44,15 +58,6 @@ __all__ = [
 ]
 
 SV_UNITS = "1e6 m3 s-1"
-
-BAND_STATUS = {
-    0: ("valid", "interior transport computed"),
-    1: ("equatorial_band", "within the equatorial band, where the Ekman/geostrophic split "
-        "(both go as 1/f) and the interior balance fail"),
-    2: ("no_eastern_coast", "the basin's ocean in this band has no gap of land in longitude "
-        "(a circumpolar band)"),
-    4: ("no_ocean", "the basin has no ocean in this band"),
-}
 
 
 def rotate_to_geographic(u_grid, v_grid, angle):
@@ -189,269 +194,10 @@ def model_grid_ekman(taux, tauy, *, grid=None, rho0: float = constants.RHO0,
     }, attrs=dict(rho0=rho0, equatorial_half_width=equatorial_half_width))
 
 
-# --- bands, basins and the westward order ---------------------------------------------------
-
-
-@dataclass
-class BandPlan:
-    """Cells of each (basin, band) group in westward order, from grid and mask alone."""
-
-    band_lat: np.ndarray          # (nb,) band centres
-    band_edges: np.ndarray        # (nb + 1,)
-    status: np.ndarray            # (n_basins, nb) int8
-    east_lon: np.ndarray          # (n_basins, nb)
-    west_lon: np.ndarray          # (n_basins, nb)
-    # One triplet per (cell, valid band it overlaps), sorted run by run (a band splits into
-    # runs at land), each from its eastern coast westward: the cell, the flat (basin, band) slot, the cell's share of the
-    # band (A frac / (R dphi), m) and its fraction of latitude extent in the band.
-    cell: np.ndarray
-    slot: np.ndarray
-    weight: np.ndarray
-    share: np.ndarray
-    starts: np.ndarray            # where each run's triplets begin (n_runs + 1,)
-    n_cells: int
-
-
-def _band_edges(grid, band_width):
-    if band_width is None:
-        # Three significant figures, so that a 1-degree grid gets 1-degree bands exactly.
-        band_width = float(f"{grid.nominal_spacing:.3g}")
-    if not (np.isfinite(band_width) and band_width > 0):
-        raise InputError(
-            f"band_width: expected a positive number of degrees, found {band_width!r}. "
-            "Fix: e.g. band_width=1.0."
-        )
-    n = int(np.ceil(180.0 / band_width))
-    return -90.0 + band_width * np.arange(n + 1)
-
-
-def _label_basins(ocean, grid, min_area_km2):
-    """Connected ocean regions through the grid's own neighbours (faces, the periodic seam and
-    the north fold), largest first; regions under ``min_area_km2`` belong to no basin."""
-    from scipy.sparse import coo_matrix
-    from scipy.sparse.csgraph import connected_components
-
-    n = ocean.size
-    index = np.arange(n, dtype=np.float64).reshape(ocean.shape)
-    wet = np.where(ocean, index, np.nan)
-    src, dst = [], []
-    for side in ("E", "N"):
-        other = grid.neighbour(wet, side)
-        link = ocean & np.isfinite(other)
-        src.append(index[link].astype(np.int64))
-        dst.append(other[link].astype(np.int64))
-    src, dst = np.concatenate(src), np.concatenate(dst)
-    graph = coo_matrix((np.ones(src.size), (src, dst)), shape=(n, n))
-    _, lab = connected_components(graph, directed=False)
-    lab = np.where(ocean.ravel(), lab, -1)
-    area = (grid.cell_area / 1e6).ravel()
-    ids = np.unique(lab[lab >= 0])
-    sizes = np.bincount(lab[lab >= 0], weights=area[lab >= 0])[ids]
-    keep = ids[sizes >= min_area_km2][np.argsort(-sizes[sizes >= min_area_km2])]
-    bid = np.full(n, -1, dtype=np.int32)
-    for k, root in enumerate(keep):
-        bid[lab == root] = k
-    return bid.reshape(ocean.shape), [f"basin_{k}" for k in range(len(keep))]
-
-
-def _earth_basins(ocean, grid):
-    """The regular-grid Earth basins carried over to the model grid by nearest neighbours."""
-    from scipy.spatial import cKDTree
-
-    from ..geometry.basins import basin_ids
-    from ..geometry.curvilinear import _unit
-
-    d = max(0.5, min(2.0, grid.nominal_spacing))
-    lat = np.arange(-90 + d / 2, 90, d)
-    lon = np.arange(d / 2, 360, d)
-    la, lo = np.meshgrid(lat, lon, indexing="ij")
-    tree = cKDTree(grid.xyz.reshape(-1, 3))
-    _, near = tree.query(_unit(la, lo).reshape(-1, 3))
-    reg = ocean.ravel()[near].reshape(la.shape)
-    mask = xr.DataArray(reg, coords={"lat": lat, "lon": lon}, dims=("lat", "lon"))
-    ids = basin_ids(mask, basins="earth")
-    names = ids.attrs["flag_meanings"].split()
-    back = cKDTree(_unit(la, lo).reshape(-1, 3))
-    _, near2 = back.query(grid.xyz.reshape(-1, 3))
-    bid = ids.values.ravel()[near2].reshape(ocean.shape).astype(np.int32)
-    return np.where(ocean, bid, -1), names
-
-
-def _polygon_basins(basins, ocean, grid):
-    from matplotlib.path import Path
-
-    bid = np.full(ocean.shape, -1, dtype=np.int32)
-    names = list(basins)
-    for k, name in enumerate(names):
-        verts = np.asarray(basins[name], dtype=np.float64)
-        if verts.ndim != 2 or verts.shape[1] != 2:
-            raise InputError(
-                f"basins['{name}']: expected a list of (lon, lat) vertices, found an array of "
-                f"shape {verts.shape}. Fix: e.g. [(280, 10), (350, 10), (350, 45), (280, 45)]."
-            )
-        path = Path(verts)
-        lon0 = verts[:, 0].min()
-        lon = lon0 + np.mod(grid.lon - lon0, 360.0)
-        pts = np.stack([lon.ravel(), grid.lat.ravel()], axis=1)
-        inside = path.contains_points(pts).reshape(ocean.shape) & ocean & (bid < 0)
-        bid[inside] = k
-    return bid, names
-
-
-def _basins_on_grid(basins, ocean, grid, min_area_km2):
-    if basins is None:
-        return _label_basins(ocean, grid, min_area_km2)
-    if isinstance(basins, str):
-        if basins != "earth":
-            raise InputError(
-                f"basins: expected None, 'earth', a DataArray of basin numbers on the model grid "
-                f"or a dict of polygons, found '{basins}'. Fix: basins='earth'."
-            )
-        return _earth_basins(ocean, grid)
-    if isinstance(basins, dict):
-        return _polygon_basins(basins, ocean, grid)
-    if isinstance(basins, xr.DataArray):
-        if basins.shape != ocean.shape:
-            raise GridError(
-                f"basins: expected basin numbers on the model grid {ocean.shape}, found shape "
-                f"{basins.shape}. Fix: compute them on the same grid."
-            )
-        vals = np.asarray(basins.values, dtype=np.float64)
-        bid = np.where(np.isfinite(vals), vals, -1).astype(np.int32)
-        meanings = str(basins.attrs.get("flag_meanings", "")).split()
-        n = int(bid.max()) + 1 if bid.max() >= 0 else 0
-        names = meanings if len(meanings) >= n else [f"basin_{k}" for k in range(n)]
-        return np.where(ocean, bid, -1), names[:max(n, len(names))]
-    raise InputError(
-        f"basins: expected None, 'earth', a DataArray or a dict, found "
-        f"{type(basins).__name__}. Fix: basins='earth'."
-    )
-
-
-_PLANS: dict = {}
-
-
-def plan_bands(ocean, bid, n_basins, grid, *, band_width=None, equatorial_half_width=3.0,
-               gap_factor=1.5) -> BandPlan:
-    """:func:`_plan_bands`, cached on the grid, mask, basins and options (a loop over the
-    fields of one model plans once)."""
-    from ..geometry.curvilinear import _grid_key
-
-    key = _grid_key(grid.lat, grid.lon, grid.corners_xyz, grid.periodic, grid.north_fold,
-                    grid.radius, ocean, bid, n_basins, band_width, equatorial_half_width,
-                    gap_factor)
-    plan = _PLANS.get(key)
-    if plan is None:
-        if len(_PLANS) >= 8:
-            _PLANS.pop(next(iter(_PLANS)))
-        plan = _PLANS[key] = _plan_bands(ocean, bid, n_basins, grid, band_width=band_width,
-                                         equatorial_half_width=equatorial_half_width,
-                                         gap_factor=gap_factor)
-    return plan
-
-
-def _plan_bands(ocean, bid, n_basins, grid, *, band_width=None, equatorial_half_width=3.0,
-                gap_factor=1.5) -> BandPlan:
-    """Group the ocean cells by basin and latitude band and order each group westward.
-
-    A gap in longitude between a band's ocean cells counts as land when it is wider than
-    ``gap_factor`` typical cell widths of the band. Land gaps split the band into runs; each
-    run is integrated westward from its own eastern coast and the band's transport is the sum
-    over its runs (as for a row split by islands on regular grids). A band with no land gap
-    has no eastern coast. The reported coasts are those of the widest run.
-    """
-    edges = _band_edges(grid, band_width)
-    nb = edges.size - 1
-    centres = 0.5 * (edges[1:] + edges[:-1])
-    lat = grid.lat.ravel()
-    lon = np.mod(grid.lon.ravel(), 360.0)
-    band = np.clip(np.searchsorted(edges, lat, side="right") - 1, 0, nb - 1)
-    dphi = np.deg2rad(np.diff(edges))
-    b = bid.ravel()
-    ok = ocean.ravel() & (b >= 0)
-    equatorial = np.abs(centres) < equatorial_half_width
-    status = np.full((n_basins, nb), 4, dtype=np.int8)
-    east = np.full((n_basins, nb), np.nan)
-    west = np.full((n_basins, nb), np.nan)
-    runs = {}  # (basin, band) -> (east lons, extents in degrees, first run id)
-    n_runs = 0
-    key = np.where(ok, b * nb + band, -1)
-    cells = np.flatnonzero(key >= 0)
-    sort = cells[np.lexsort((lon[cells], key[cells]))]
-    bounds = np.flatnonzero(np.diff(key[sort])) + 1
-    typical = grid.nominal_spacing
-    for part in (np.split(sort, bounds) if sort.size else []):
-        k, j = divmod(int(key[part[0]]), nb)
-        if equatorial[j]:
-            status[k, j] = 1
-            continue
-        lons = lon[part]
-        gaps = np.diff(np.concatenate([lons, [lons[0] + 360.0]]))
-        width = typical / max(np.cos(np.deg2rad(centres[j])), 1e-3)
-        land = np.flatnonzero(gaps > gap_factor * width)
-        if land.size == 0:
-            status[k, j] = 2
-            continue
-        status[k, j] = 0
-        # Each run ends in the east at the western side of a land gap.
-        e = lons[land] + 0.5 * width
-        w = lons[(np.roll(land, 1) + 1) % lons.size] - 0.5 * width
-        extent = np.mod(e - w, 360.0)
-        widest = int(np.argmax(extent))
-        east[k, j], west[k, j] = e[widest], w[widest]
-        runs[(k, j)] = (e, extent, n_runs)
-        n_runs += e.size
-
-    # A cell adds to every valid band its latitude extent overlaps, by the share of the
-    # extent in that band (cells straddle band edges on rotated grids).
-    clat, _ = grid.corners_latlon
-    corners = np.stack([clat[:-1, :-1], clat[:-1, 1:], clat[1:, 1:], clat[1:, :-1]])
-    lo, hi = corners.min(axis=0).ravel(), corners.max(axis=0).ravel()
-    span = np.maximum(hi - lo, 1e-12)
-    first = np.clip(np.searchsorted(edges, lo, side="right") - 1, 0, nb - 1)
-    last = np.clip(np.searchsorted(edges, hi, side="left") - 1, 0, nb - 1)
-    parts = []
-    idx = np.flatnonzero(ok)
-    for off in range(int((last - first).max()) + 1 if idx.size else 0):
-        j = first[idx] + off
-        use = j <= last[idx]
-        c, j = idx[use], j[use]
-        frac = (np.minimum(hi[c], edges[j + 1]) - np.maximum(lo[c], edges[j])) / span[c]
-        keep = (status[b[c], j] == 0) & (frac > 0)
-        c, j, frac = c[keep], j[keep], frac[keep]
-        area = grid.cell_area.ravel()[c]
-        parts.append((c, b[c] * nb + j, frac * area / (grid.radius * dphi[j]), frac))
-    if parts:
-        c, sl, w, fr = (np.concatenate(x) for x in zip(*parts))
-    else:
-        c, sl, w, fr = (np.zeros(0, dt) for dt in (int, int, float, float))
-    # Each triplet joins the run of its band whose span holds it (the nearest run to its east
-    # when it sits over the band's land), and is ordered by its distance west of that run's
-    # eastern coast.
-    run = np.empty(c.size, dtype=np.int64)
-    dist = np.empty(c.size)
-    order = np.argsort(sl, kind="stable")
-    seg = np.concatenate([[0], np.flatnonzero(np.diff(sl[order])) + 1, [order.size]])
-    for a, z in zip(seg[:-1], seg[1:]):
-        t = order[a:z]
-        k, j = divmod(int(sl[t[0]]), nb)
-        e, extent, r0 = runs[(k, j)]
-        d = np.mod(e[None, :] - lon[c[t]][:, None], 360.0)
-        inside = d <= extent[None, :] + 1e-9
-        pick = np.where(inside.any(axis=1), np.argmax(inside, axis=1), np.argmin(d, axis=1))
-        run[t] = r0 + pick
-        dist[t] = d[np.arange(t.size), pick]
-    o = np.lexsort((dist, run))
-    c, sl, w, fr, run = c[o], sl[o], w[o], fr[o], run[o]
-    starts = np.concatenate([[0], np.flatnonzero(np.diff(run)) + 1, [run.size]])
-    return BandPlan(centres, edges, status, east, west, c.astype(np.int64),
-                    sl.astype(np.int64), w, fr, starts.astype(np.int64), lat.size)
-
-
 def _sverdrup_kernel(v, *, plan, n_basins):
     flat = v.reshape(v.shape[:-2] + (-1,))
     nb = plan.band_lat.size
-    out = band_sums(flat, plan.cell, plan.slot, plan.weight, n_basins * nb)
+    out = band_sums(flat, plan.sum_cell, plan.sum_slot, plan.sum_weight, n_basins * nb)
     psi = westward_band_scan(flat, plan.cell, plan.weight, plan.share, plan.starts,
                              plan.n_cells)
     return (psi.reshape(v.shape) / constants.SVERDRUP_IN_M3_S,
@@ -475,9 +221,32 @@ def _ocean_of(taux, tauy, ocean_mask, grid):
     return np.asarray(seen.transpose(*grid.dims).values, dtype=bool)
 
 
+def _fill_kernel(tx, ty, *, target, keep_missing, neighbour):
+    """Stress on small islands (and, unless ``keep_missing``, in gaps of the ocean) by
+    nearest-ocean averaging through the model grid's neighbours, as on regular grids."""
+    missing = np.isnan(tx) | np.isnan(ty)
+    tx, ty = np.where(missing, np.nan, tx), np.where(missing, np.nan, ty)
+    fx = fill_from_neighbours_numpy(tx, target=target, periodic=False, neighbour=neighbour)
+    fy = fill_from_neighbours_numpy(ty, target=target, periodic=False, neighbour=neighbour)
+    if keep_missing is None:
+        return fx, fy
+    stay = missing & keep_missing
+    return np.where(stay, np.nan, fx), np.where(stay, np.nan, fy)
+
+
+def _flags(table):
+    return {"flag_values": np.array(list(table), dtype=np.int8),
+            "flag_meanings": " ".join(n for n, _ in table.values()),
+            "comment": "; ".join(f"{k} {n}: {w}" for k, (n, w) in table.items())}
+
+
 def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
                         rho0: float = constants.RHO0, equatorial_half_width: float = 3.0,
                         band_width: float | None = None, min_basin_area_km2: float = 1e5,
+                        island_min_area_km2: float = ISLAND_MIN_AREA,
+                        continent_min_area_km2: float = CONTINENT_MIN_AREA,
+                        min_width_km: float = MIN_WIDTH, fill_gaps: bool = True,
+                        land_connectivity: int = 4, land_classes=None, seas=None,
                         radius: float = constants.EARTH_RADIUS,
                         omega: float = constants.OMEGA) -> xr.Dataset:
     r"""Sverdrup transport on a curvilinear model grid, by basin and latitude band.
@@ -490,14 +259,21 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
     ocean_mask : array or DataArray (y, x), optional
         True/1 for ocean; by default where the stress is present.
     basins : None, "earth", DataArray (y, x) or dict of (lon, lat) polygons, optional
-        ``None``: connected ocean regions (through faces, the periodic seam and the fold);
-        ``"earth"``: the regular-grid Earth basins (:func:`sverdrup_kit.basin_ids`) carried to
-        the model grid by nearest neighbours; a DataArray of basin numbers on the model grid
-        (names from CF ``flag_meanings``); or polygons, a cell belonging to the first that
-        contains its centre.
+        ``None``: on a global grid whose mask shows the Earth's continents, the Earth basins
+        (``earth (detected)``); otherwise connected water regions (through faces, the
+        periodic seam and the fold; not split at continents' tips as on regular grids).
+        ``"earth"``: the Atlantic, Pacific and Indian Oceans, labelled through the model
+        grid's own neighbours and cut where a link between two cell centres crosses a line of
+        :data:`~sverdrup_kit.geometry.basins.EARTH_DIVIDING_LINES`. A DataArray of basin
+        numbers on the model grid (names from CF ``flag_meanings``); or polygons, a cell
+        belonging to the first that contains its centre.
     band_width : float, optional
         Width of the latitude bands in degrees; default the grid's nominal spacing. Bands start
         at 90S.
+    island_min_area_km2, continent_min_area_km2, min_width_km, fill_gaps, land_connectivity,
+    land_classes, seas
+        As for :func:`sverdrup_kit.sverdrup_transport`; land bodies are labelled through the
+        model grid's neighbours and measured with its cell areas.
     rho0, equatorial_half_width, radius, omega
         As for :func:`sverdrup_kit.sverdrup_transport`.
 
@@ -505,10 +281,12 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
     -------
     xarray.Dataset
         ``wind_stress_curl``, ``sverdrup_northward_transport`` (m2 s-1) and
-        ``sverdrup_streamfunction`` (1e6 m3 s-1, zero at each band's eastern coast) on the
+        ``sverdrup_streamfunction`` (1e6 m3 s-1, zero at each run's eastern coast) on the
         model grid; ``interior_transport`` and ``boundary_current_transport`` (..., basin,
-        lat) with ``lat`` the band centres; ``row_status``, ``eastern_coast_lon``,
-        ``western_coast_lon`` (basin, lat); ``basin_id`` (y, x).
+        lat) with ``lat`` the band centres; ``row_status`` (the regular grids' flags),
+        ``eastern_coast_lon``, ``western_coast_lon`` (basin, lat); ``basin_id``,
+        ``land_class`` and ``integration_class`` (y, x); with the Earth basins
+        ``crossed_seas`` and ``ending_seas`` (basin, lat).
     """
     rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)
     equatorial_half_width = _validate.number(
@@ -516,15 +294,31 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
         example=3.0)
     min_basin_area_km2 = _validate.number(min_basin_area_km2, "min_basin_area_km2",
                                           sign="non-negative", units="km2", example=1e5)
+    island_min_area_km2 = _validate.number(island_min_area_km2, "island_min_area_km2",
+                                           sign="non-negative", units="km2", example=1e5)
+    continent_min_area_km2 = _validate.number(continent_min_area_km2, "continent_min_area_km2",
+                                              sign="non-negative", units="km2", example=5e6)
+    min_width_km = _validate.number(min_width_km, "min_width_km", sign="non-negative",
+                                    units="km", example=MIN_WIDTH)
     if band_width is not None:
         band_width = _validate.number(band_width, "band_width", units="degrees", example=1.0)
     grid = _grid_of(taux, "taux", grid, radius, omega)
     tx = _validate.field(taux, "taux", "stress", default_units="Pa")
     ty = _validate.field(tauy, "tauy", "stress", default_units="Pa")
     ocean = _ocean_of(taux, tauy, ocean_mask, grid)
-    bid, names = _basins_on_grid(basins, ocean, grid, min_basin_area_km2)
-    plan = plan_bands(ocean, bid, len(names), grid, band_width=band_width,
-                      equatorial_half_width=equatorial_half_width)
+    geom = model_geometry(
+        grid, ocean, basins=basins, island_min_area_km2=island_min_area_km2,
+        continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km,
+        equatorial_half_width=equatorial_half_width, band_width=band_width,
+        land_connectivity=land_connectivity, land_classes=land_classes, seas=seas,
+        min_basin_area_km2=min_basin_area_km2)
+    plan, names, bid = geom.plan, geom.names, geom.basin_id
+    cls = geom.land.cls
+    water = cls <= SMALL_ISLAND
+    if (water & ~ocean).any() or fill_gaps:
+        tx, ty = _apply(_fill_kernel, tx, ty, grid=grid, argname="taux", n_out=2, kwargs=dict(
+            target=water, keep_missing=None if fill_gaps else ocean,
+            neighbour=grid.neighbour))
     curl = _apply(_curl_kernel, tx, ty, grid=grid, argname="taux", kwargs=dict(grid=grid))
     beta = xr.DataArray(grid.beta, dims=grid.dims)
     v = curl / (rho0 * beta)
@@ -547,41 +341,53 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
                                              "standard_name": "latitude",
                                              "long_name": "centre of the latitude band"})}
     transport = transport.assign_coords(coords)
-    flag = {"flag_values": np.array(list(BAND_STATUS), dtype=np.int8),
-            "flag_meanings": " ".join(n for n, _ in BAND_STATUS.values()),
-            "comment": "; ".join(f"{k} {n}: {w}" for k, (n, w) in BAND_STATUS.items())}
     ds = xr.Dataset({
         "wind_stress_curl": curl.transpose(*taux.dims).assign_attrs(
-            long_name="wind stress curl", units="N m-3"),
+            long_name="wind stress curl", units="N m-3",
+            comment="small islands and gaps filled by nearest-ocean averaging first"),
         "sverdrup_northward_transport": v.transpose(*taux.dims).assign_attrs(
             long_name="Sverdrup meridional transport per unit width", units="m2 s-1"),
         "sverdrup_streamfunction": psi.transpose(*taux.dims).assign_attrs(
             long_name="Sverdrup transport streamfunction", units=SV_UNITS,
-            comment="band by band, westward from the band's eastern coast, cells in order of "
-            "longitude; zero at the eastern coast"),
+            comment="band by band, westward from each run's eastern coast, cells in order of "
+            "longitude; zero at the eastern coast; restarts west of each large island"),
         "interior_transport": transport.assign_attrs(
             long_name="Sverdrup interior transport across the basin", units=SV_UNITS,
-            comment="sum over the basin's ocean cells in the latitude band of V A / (R dphi), "
-            "positive northward"),
+            comment="sum over the basin's counted cells in the latitude band of V A / (R dphi), "
+            "positive northward; small islands crossed, large islands start a new run, "
+            "marginal seas not counted"),
         "boundary_current_transport": (-transport).assign_attrs(
             long_name="western boundary current transport implied by Sverdrup balance",
             units=SV_UNITS),
         "row_status": (("basin", "lat"), plan.status, {
             "long_name": "status of the Sverdrup interior transport of each basin band",
-            **flag}),
+            **_flags(ROW_STATUS)}),
         "eastern_coast_lon": (("basin", "lat"), plan.east_lon, {
             "long_name": "longitude of the band's eastern coast", "units": "degrees_east",
             "standard_name": "longitude"}),
         "western_coast_lon": (("basin", "lat"), plan.west_lon, {
             "long_name": "longitude of the band's western end", "units": "degrees_east",
             "standard_name": "longitude"}),
-        "basin_id": (tuple(dims), bid, {
-            "long_name": "ocean basin number",
-            "flag_values": np.arange(len(names), dtype=np.int32),
-            "flag_meanings": " ".join(names)}),
+        "basin_id": (tuple(dims), bid.astype(np.int32), basin_id_attrs(names)),
+        "land_class": (tuple(dims), cls.copy(), {
+            "long_name": "land class",
+            "flag_values": np.arange(4, dtype=np.int8),
+            "flag_meanings": "ocean " + " ".join(v[0] for v in LAND_CLASSES.values()),
+            "comment": "; ".join(f"{v[0]}: {v[1]}" for v in LAND_CLASSES.values())}),
+        "integration_class": (tuple(dims), plan.cell_class.copy(), {
+            "long_name": "role of each cell (by its centre's band) in the band integral",
+            **_flags(CELL_CLASS)}),
     }, coords=coords)
+    if geom.basins_used.startswith("earth"):
+        ds["crossed_seas"] = (("basin", "lat"), plan.crossed_seas.astype(str), {
+            "long_name": "named seas that the band's counted ocean crosses"})
+        ds["ending_seas"] = (("basin", "lat"), plan.ending_seas.astype(str), {
+            "long_name": "excluded seas whose edge ends the band's counted ocean"})
     ds.attrs.update(rho0=rho0, equatorial_half_width=equatorial_half_width,
                     band_width_deg=float(np.diff(plan.band_edges)[0]),
+                    island_min_area_km2=island_min_area_km2,
+                    continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km,
+                    basins=geom.basins_used, land_connectivity=land_connectivity,
                     grid=repr(grid), corners_from=grid.corners_from,
                     method="curvilinear: Stokes curl per cell, latitude-band sums")
     return ds
@@ -644,9 +450,10 @@ def model_circulation(u, v, *, thickness=None, depth_dim=None, taux=None, tauy=N
             "components='grid' for velocities along the model's grid lines."
         )
     ocean = _ocean_of(U, V, ocean_mask, grid)
-    bid, names = _basins_on_grid(basins, ocean, grid, 1e5)
-    plan = plan_bands(ocean, bid, len(names), grid, band_width=band_width,
-                      equatorial_half_width=equatorial_half_width)
+    geom = model_geometry(grid, ocean, basins=basins, island_min_area_km2=ISLAND_MIN_AREA,
+                          continent_min_area_km2=CONTINENT_MIN_AREA, min_width_km=MIN_WIDTH,
+                          equatorial_half_width=equatorial_half_width, band_width=band_width)
+    plan, names, bid = geom.plan, geom.names, geom.basin_id
     dims = list(grid.dims)
     psi, transport = xr.apply_ufunc(
         _sverdrup_kernel, V.chunk({d: -1 for d in dims}) if V.chunks is not None else V,
@@ -671,8 +478,7 @@ def model_circulation(u, v, *, thickness=None, depth_dim=None, taux=None, tauy=N
         "basin_id": (tuple(dims), bid, {"flag_meanings": " ".join(names)}),
     }, coords=coords)
     if taux is not None and tauy is not None:
-        basin_da = xr.DataArray(bid, dims=grid.dims, attrs={"flag_meanings": " ".join(names)})
-        sv = model_grid_sverdrup(taux, tauy, ocean_mask=ocean, basins=basin_da, grid=grid,
+        sv = model_grid_sverdrup(taux, tauy, ocean_mask=ocean, basins=basins, grid=grid,
                                  rho0=rho0, equatorial_half_width=equatorial_half_width,
                                  band_width=band_width)
         ds["interior_transport"] = sv.interior_transport

@@ -329,7 +329,11 @@ def sverdrup_transport(
 
         return model_grid_sverdrup(
             taux, require_dataarray(tauy, "tauy"), ocean_mask=ocean_mask, basins=basins,
-            rho0=rho0, equatorial_half_width=equatorial_half_width, radius=radius, omega=omega)
+            rho0=rho0, equatorial_half_width=equatorial_half_width, radius=radius, omega=omega,
+            island_min_area_km2=island_min_area_km2,
+            continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km,
+            fill_gaps=fill_gaps, land_connectivity=land_connectivity,
+            land_classes=land_classes, seas=seas)
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
     rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)

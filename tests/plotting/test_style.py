@@ -38,11 +38,11 @@ def test_every_row_status_has_its_own_shading():
     # Each reason a row is left empty or cautioned must be told apart on a figure: its own
     # hatch and ground, and its own legend label (common practice: one legend entry per
     # meaning). The cautions (rows drawn with a value) share a ground of their own.
+    # Model grids' bands use the same ROW_STATUS table.
     from sverdrup_kit.geometry.rows import ROW_STATUS
-    from sverdrup_kit.physics.model_grid import BAND_STATUS
     from sverdrup_kit.plotting._style import REASONS, SKIP_REASONS
 
-    meanings = {m for m, _ in ROW_STATUS.values()} | {m for m, _ in BAND_STATUS.values()}
+    meanings = {m for m, _ in ROW_STATUS.values()}
     shown = sorted(meanings - SKIP_REASONS)
     missing = [m for m in shown if m not in REASONS]
     assert not missing, missing
