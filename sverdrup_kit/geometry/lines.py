@@ -12,6 +12,11 @@ from .._compiled.dispatch import label_links
 from .grid import SphericalGrid
 
 
+#: Degrees by which dividing lines are moved north and east before they are laid on a grid:
+#: far below any grid spacing (0.1 m), far above round-off of coordinates given to 1e-9.
+_NUDGE_DEG = 1e-6
+
+
 def label_cells(mask, *, periodic, diagonal=False, cut_east=None, cut_north=None):
     """Connected components of the True cells of ``mask`` (ny, nx).
 
@@ -52,7 +57,11 @@ def line_cuts(grid: SphericalGrid, lines):
     lon_next[:-1] = lon[1:]
     lon_next[-1] = lon[0] + 360.0 if grid.periodic else np.inf
     for verts in lines:
-        v = np.asarray(verts, dtype=np.float64)
+        # Lines drawn along round numbers meet grids whose centres lie on them (65.5N on a grid
+        # of centres at x.5): a centre exactly on a line would fall on different sides of two
+        # segments that meet there and leave a passage at the corner. Moved by a hair north
+        # and east, every line has each centre strictly on one side.
+        v = np.asarray(verts, dtype=np.float64) + _NUDGE_DEG
         for (x1, y1), (x2, y2) in zip(v[:-1], v[1:]):
             for shift in (-720.0, -360.0, 0.0, 360.0, 720.0):
                 xa, xb = x1 + shift, x2 + shift

@@ -193,3 +193,34 @@ def test_row_plan_runs_lie_in_one_row_in_ascending_order():
         s1 = plan.group_starts[k + 1] if k + 1 < plan.group_starts.size else plan.group_runs.size
         assert np.unique(rows[starts[plan.group_runs[s0:s1]]]).size == 1
         assert rows[starts[plan.group_runs[s0]]] == plan.group_slot[k] % lat.size
+
+
+@pytest.mark.parametrize("step, offset", [(1.0, 0.5), (1.0, 0.0), (2.0, 1.0), (0.5, 0.25)])
+def test_dividing_lines_close_at_corners_on_grids_with_centres_on_them(step, offset):
+    # Geometry of the grid graph (no outside source needed): two lines that meet at a corner,
+    # one down a meridian and one along a parallel and then up another meridian (the
+    # Drake-Magellan pair of the Earth basins), divide open water into two pieces on every grid,
+    # also where cell centres lie exactly on the lines (centres at x.5 meet 55.5S; at x.0 meet
+    # 292E and 290E). Before the lines were moved off the centres, such a grid left a passage
+    # at the corner and joined the Atlantic and the Pacific.
+    from sverdrup_kit.geometry.grid import SphericalGrid
+    from sverdrup_kit.geometry.lines import label_cells, line_cuts
+
+    lat = np.arange(-80.0 + offset, -30.0, step)
+    lon = np.arange(offset, 360.0, step)
+    grid = SphericalGrid(lat, lon, True, 6.371e6, 7.292e-5, None)
+    lines = [[(292.0, -90.0), (292.0, -55.5)],
+             [(292.0, -55.5), (290.0, -55.5), (290.0, -40.0)],
+             [(250.0, -90.0), (250.0, -40.0)], [(0.0, -40.0), (360.0, -40.0)]]
+    cut_e, cut_n = line_cuts(grid, lines)
+    water = np.ones((lat.size, lon.size), dtype=bool)
+    labels, n = label_cells(water, periodic=True, cut_east=cut_e, cut_north=cut_n)
+    j_s = np.argmin(np.abs(lat + 70.0))
+    j_n = np.argmin(np.abs(lat + 50.0))
+    west = labels[j_s, np.argmin(np.abs(lon - 270.0))]   # between the two meridians, south
+    east = labels[j_s, np.argmin(np.abs(lon - 320.0))]   # east of Drake
+    assert west != east
+    # North of the corner the piece between 250E and 290E is the western one, and the strip
+    # between 290E and 292E belongs to the east.
+    assert labels[j_n, np.argmin(np.abs(lon - 270.0))] == west
+    assert labels[j_n, np.argmin(np.abs(lon - 300.0))] == east
