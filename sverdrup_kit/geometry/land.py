@@ -267,13 +267,37 @@ def land_bodies(ocean, grid, *, island_min_area_km2=ISLAND_MIN_AREA,
                       landmarks=tuple(", ".join(nm) for nm in names), cut_by_edge=edge)
 
 
+def _latlon_2d(grid):
+    """Cell-centre latitudes and longitudes (ny, nx) of a regular or a model grid, degrees."""
+    if _is_model_grid(grid):
+        return grid.lat, grid.lon
+    return np.broadcast_arrays(grid.lat[:, None], grid.lon[None, :])
+
+
+def _lon_extent_of_values(lab, lons, n):
+    """West and east ends of each body from its cells' longitudes: the complement of the
+    widest gap between them on the circle (model grids, whose columns are not meridians)."""
+    west = np.full(n, np.nan)
+    east = np.full(n, np.nan)
+    lons = np.mod(lons, 360.0)
+    order = np.lexsort((lons, lab))
+    lab, lons = lab[order], lons[order]
+    starts = np.flatnonzero(np.r_[True, np.diff(lab) != 0])
+    for a, z in zip(starts, np.r_[starts[1:], lab.size]):
+        x = lons[a:z]
+        gaps = np.diff(np.append(x, x[0] + 360.0))
+        g = int(np.argmax(gaps))
+        west[lab[a]], east[lab[a]] = x[(g + 1) % x.size], x[g]
+    return west, east
+
+
 def _centroids(labels, grid, n):
     """Area-weighted centroids on the sphere (mean unit vector), degrees north and east."""
     land = labels >= 0
-    phi = np.deg2rad(grid.lat)[:, None]
-    lam = np.deg2rad(grid.lon)[None, :]
+    lat2, lon2 = _latlon_2d(grid)
+    phi, lam = np.deg2rad(lat2), np.deg2rad(lon2)
     w = grid.cell_area
-    vec = [np.cos(phi) * np.cos(lam), np.cos(phi) * np.sin(lam), np.sin(phi) * np.ones_like(lam)]
+    vec = [np.cos(phi) * np.cos(lam), np.cos(phi) * np.sin(lam), np.sin(phi)]
     s = [np.bincount(labels[land], weights=(w * v)[land], minlength=n) for v in vec]
     lat_c = np.rad2deg(np.arctan2(s[2], np.hypot(s[0], s[1])))
     lon_c = np.rad2deg(np.arctan2(s[1], s[0])) % 360.0
@@ -288,9 +312,11 @@ def island_table(ocean_mask, *, island_min_area_km2: float = ISLAND_MIN_AREA,
 
     Parameters
     ----------
-    ocean_mask : xarray.DataArray (lat, lon)
+    ocean_mask : xarray.DataArray (lat, lon), or (y, x) on a model grid
         True (or 1) for ocean, False/0/NaN for land; any latitude order and longitude
-        convention.
+        convention. On a curvilinear model grid (two-dimensional latitude and longitude) the
+        bodies are connected through the grid's own neighbours (seam and fold included) and
+        measured with its cell areas.
     island_min_area_km2, continent_min_area_km2 : float, optional
         km2. Class limits, as in :func:`~sverdrup_kit.sverdrup_transport`.
     land_connectivity : {4, 8}, optional
@@ -339,11 +365,17 @@ def island_table(ocean_mask, *, island_min_area_km2: float = ISLAND_MIN_AREA,
     """
     from .basins import _as_bool
     from .coords import require_dataarray, to_canonical
+    from .curvilinear import CurvilinearGrid, is_curvilinear
 
     ocean_mask = require_dataarray(ocean_mask, "ocean_mask")
-    grid = SphericalGrid.from_data(ocean_mask, argname="ocean_mask")
-    lay = grid.layout
-    can = to_canonical(ocean_mask, lay).transpose(lay.lat_name, lay.lon_name)
+    if is_curvilinear(ocean_mask):
+        # A model grid: its own cells, neighbours and areas; the table keeps its (y, x) order.
+        grid = CurvilinearGrid.from_data(ocean_mask, argname="ocean_mask")
+        lay, can = None, ocean_mask
+    else:
+        grid = SphericalGrid.from_data(ocean_mask, argname="ocean_mask")
+        lay = grid.layout
+        can = to_canonical(ocean_mask, lay).transpose(lay.lat_name, lay.lon_name)
     ocean = _as_bool(np.asarray(can.values), "ocean_mask")
     lb = land_bodies(ocean, grid, island_min_area_km2=island_min_area_km2,
                      continent_min_area_km2=continent_min_area_km2,
@@ -358,14 +390,16 @@ def _table(lb: LandBodies, grid, can, lay, original) -> xr.Dataset:
     n = lb.area_km2.size
     labels = lb.labels
     land = labels >= 0
-    jj, ii = np.nonzero(land)
     lab = labels[land]
-    north = np.full(n, -1, dtype=np.int64)
-    south = np.full(n, lat_size := grid.lat.size, dtype=np.int64)
-    np.maximum.at(north, lab, jj)
-    np.minimum.at(south, lab, jj)
-    south = np.minimum(south, lat_size - 1)
-    west_lon, east_lon = _lon_extent(lab, ii, n, grid.lon, grid.periodic)
+    lat2, lon2 = _latlon_2d(grid)
+    north_lat = np.full(n, -np.inf)
+    south_lat = np.full(n, np.inf)
+    np.maximum.at(north_lat, lab, lat2[land])
+    np.minimum.at(south_lat, lab, lat2[land])
+    if _is_model_grid(grid):
+        west_lon, east_lon = _lon_extent_of_values(lab, lon2[land], n)
+    else:
+        west_lon, east_lon = _lon_extent(lab, np.nonzero(land)[1], n, grid.lon, grid.periodic)
     lat_c, lon_c = _centroids(labels, grid, n)
     ncell = np.bincount(lab, minlength=n)
     island = np.arange(n)
@@ -381,10 +415,10 @@ def _table(lb: LandBodies, grid, can, lay, original) -> xr.Dataset:
                                                "centroid", "units": "degrees_north"}),
             "centroid_lon": ("island", lon_c, {"long_name": "longitude of the area-weighted "
                                                "centroid", "units": "degrees_east"}),
-            "north_lat": ("island", grid.lat[north], {
+            "north_lat": ("island", north_lat, {
                 "long_name": "latitude of the northern tip", "units": "degrees_north",
                 "comment": "centre of the body's northernmost cells"}),
-            "south_lat": ("island", grid.lat[south], {
+            "south_lat": ("island", south_lat, {
                 "long_name": "latitude of the southern tip", "units": "degrees_north",
                 "comment": "centre of the body's southernmost cells"}),
             "west_lon": ("island", west_lon, {"long_name": "longitude of the western end",
@@ -407,7 +441,8 @@ def _table(lb: LandBodies, grid, can, lay, original) -> xr.Dataset:
         coords={"island": ("island", island, {"long_name": "land body number"})},
     )
     lab_da = xr.DataArray(labels.astype(np.int32), coords=can.coords, dims=can.dims)
-    lab_da = from_canonical(lab_da, lay, original)
+    if lay is not None:
+        lab_da = from_canonical(lab_da, lay, original)
     ds["land_label"] = lab_da.assign_attrs(long_name="land body number (island index)",
                                            comment="-1 on ocean")
     return ds
