@@ -111,8 +111,8 @@ def test_the_rule_does_not_depend_on_where_the_closed_path_starts(world):
     fy = np.nan_to_num(rule_module._carry_along(np.where(geo.water, ty.values, np.nan), -1, True))
     base = (wx @ fx.ravel() + wy @ fy.ravel()).sum()
     for k in (1, 17, len(pts) // 2):
-        p2 = pts[k:] + pts[1:k + 1]
-        l2 = legs[k:] + legs[:k]
+        p2 = np.concatenate([pts[k:], pts[1:k + 1]])
+        l2 = np.concatenate([legs[k:], legs[:k]])
         wx2, wy2 = rule_module._weights(geo, p2, l2)
         assert (wx2 @ fx.ravel() + wy2 @ fy.ravel()).sum() == pytest.approx(base, rel=1e-12)
 
