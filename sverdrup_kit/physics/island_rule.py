@@ -70,6 +70,7 @@ from ..geometry.basins import (
 from ..geometry.coords import (
     GridLayout,
     check_same_grid,
+    matching_positions,
     require_dataarray,
     to_canonical,
 )
@@ -1004,16 +1005,12 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
 
 
 def _passages(base, names):
-    out = []
-    keep = []
-    for name, spec in PASSAGES.items():
-        if spec["island"] in names:
-            out.append(base.isel(island=names.index(spec["island"])))
-            keep.append(name)
-    if not out:
+    keep = [k for k, spec in PASSAGES.items() if spec["island"] in names]
+    if not keep:
         return None
-    da = xr.concat(out, "passage").assign_coords(passage=keep)
-    da = da.transpose(..., "passage")
+    at = [names.index(PASSAGES[k]["island"]) for k in keep]
+    da = base.isel(island=at).drop_vars("island", errors="ignore").rename(island="passage")
+    da = da.assign_coords(passage=keep).transpose(..., "passage")
     return da.assign_attrs(
         long_name="throughflow of an open passage from Godfrey's island rule", units=SV_UNITS,
         comment="; ".join(f"{k}: {PASSAGES[k]['comment']}" for k in keep),
@@ -1340,26 +1337,28 @@ def add_island_variables(ds, basin_bc, islands, lat):
     """Put the island rule's results into a Sverdrup result (in the user's latitude order).
 
     The new variables go in as plain variables on the result's own coordinates, so that the
-    coordinates keep their attributes.
+    coordinates keep their attributes; all in one update of the result.
     """
     order = ds[lat].values
+    canonical = basin_bc[lat].values
+    take = None if np.array_equal(canonical, order) else matching_positions(canonical, order)
 
     def on_ds(da):
-        if lat in da.dims:
-            da = da.assign_coords({lat: da[lat].values}).sel({lat: order})
-        return da.drop_vars([c for c in da.coords if c in (lat, "basin")]).variable
+        v = da.variable
+        return v.isel({lat: take}) if take is not None and lat in v.dims else v
 
     ds = ds.copy()
-    bc = basin_bc.transpose(*ds.boundary_current_transport.dims)
-    ds["boundary_current_transport"] = on_ds(bc).copy(deep=False)
-    ds["boundary_current_transport"].attrs = dict(
-        long_name="western boundary current against the western coast of the basin",
-        units=SV_UNITS,
-        comment="northward: streamfunction at the western face of the westernmost interior "
+    bc = on_ds(basin_bc.transpose(*ds.boundary_current_transport.dims)).copy(deep=False)
+    bc.attrs = {
+        "long_name": "western boundary current against the western coast of the basin",
+        "units": SV_UNITS,
+        "comment": "northward: streamfunction at the western face of the westernmost interior "
         "cell minus the constant of the western coast (zero on a continent). With islands "
         "it is minus the interior transport plus the constant of the row's eastern coast "
         "minus the island boundary currents (island_boundary_current_transport); NaN in "
-        "rows left empty (row_status)")
+        "rows left empty (row_status)",
+    }
+    new = {"boundary_current_transport": bc}
     ds.sverdrup_streamfunction.attrs["comment"] = (
         ds.sverdrup_streamfunction.attrs["comment"].replace(
             "restarts at zero west of each large island", "west of a large island it starts "
@@ -1369,9 +1368,10 @@ def add_island_variables(ds, basin_bc, islands, lat):
         for name, da in islands.data_vars.items():
             lead = [d for d in da.dims if d not in ("island", "passage", lat)]
             core = [d for d in ("island", "passage", lat) if d in da.dims]
-            ds[name] = on_ds(da.transpose(*lead, *core))
+            new[name] = on_ds(da.transpose(*lead, *core))
         if "passage" in islands.coords:
-            ds = ds.assign_coords(passage=islands["passage"])
+            new["passage"] = islands["passage"].variable
+    ds.update(new)
     ds.attrs["island_rule"] = ("Godfrey (1989): island constants of the streamfunction from "
                                "the island rule, applied island by island")
     return ds
