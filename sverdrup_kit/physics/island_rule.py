@@ -1224,7 +1224,9 @@ def _constants_kernel(tx, ty, psi, v, transport, *, lines, scale, table, dx_half
     face = P[:, q] - V[:, q] * dx_half[q]
     Ipad = np.concatenate([island_psi, np.zeros((k, 1))], axis=1)  # column -1: no island
     off = Ipad[:, table.const_island] + (table.chain @ face.T).T
-    out = P.copy()
+    # psi is the scan's own new array, used by nothing else: the constants go in in place,
+    # which saves a whole-grid allocation per field.
+    out = P if P.flags.writeable else P.copy()
     out[:, table.const_cells] += off[:, table.const_of_cell]
     # Boundary currents: the western face of a run minus the constant of the land west of it.
     w = table.bc_cells
@@ -1269,10 +1271,12 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
     (or of an island of :data:`EARTH_RULE_ISLANDS`) gets the island's constant from the rule;
     a run that starts on open water (the Indonesian dividing line, or the edge of a marginal
     sea the Earth basins leave out) continues the streamfunction of the water east of it.
+
     ``tx``, ``ty``: canonical SI stress; ``prepared``: already NaN outside the water and
-    gap-filled as ``fill_gaps`` asks. Returns the new streamfunction, the boundary current
-    against each basin row's western coast (..., basin, lat), and a Dataset of the island
-    variables on the canonical grid (None without islands).
+    gap-filled as ``fill_gaps`` asks. ``psi`` must be the scan's own array, which nothing else
+    reads: the constants are added to it in place. Returns the new streamfunction, the
+    boundary current against each basin row's western coast (..., basin, lat), and a Dataset
+    of the island variables on the canonical grid (None without islands).
     """
     lat, lon = geo.layout.lat_name, geo.layout.lon_name
     paths, lines, table = _island_setup(geo, plan, equatorial_half_width)
