@@ -989,9 +989,10 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
         coords={"island": island, "leg": ("leg", list(LEGS)),
                 "tip": ("tip", ["north", "south"]), "shift": ("shift", [-1, 1])},
     )
-    through = _passages(base, names) if geo.earth else None
+    through = _passages(base.variable, names) if geo.earth else None
     if through is not None:
-        ds["passage_transport"] = through
+        ds = ds.assign_coords(passage=through[1])
+        ds["passage_transport"] = through[0]
     ds.attrs.update(
         rho0=rho0, equatorial_half_width=band,
         method="Godfrey (1989) island rule, applied island by island; path on cell faces, "
@@ -1005,18 +1006,22 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
 
 
 def _passages(base, names):
+    """The island transports that are passage throughflows: (Variable (..., passage), names)
+    or None. ``base``: Variable (..., island)."""
     keep = [k for k, spec in PASSAGES.items() if spec["island"] in names]
     if not keep:
         return None
     at = [names.index(PASSAGES[k]["island"]) for k in keep]
-    da = base.isel(island=at).drop_vars("island", errors="ignore").rename(island="passage")
-    da = da.assign_coords(passage=keep).transpose(..., "passage")
-    return da.assign_attrs(
-        long_name="throughflow of an open passage from Godfrey's island rule", units=SV_UNITS,
-        comment="; ".join(f"{k}: {PASSAGES[k]['comment']}" for k in keep),
-        passage_from=" ".join(PASSAGES[k]["from"] for k in keep),
-        passage_to=" ".join(PASSAGES[k]["to"] for k in keep),
-    )
+    v = base.isel(island=at)
+    attrs = {
+        "long_name": "throughflow of an open passage from Godfrey's island rule",
+        "units": SV_UNITS,
+        "comment": "; ".join(f"{k}: {PASSAGES[k]['comment']}" for k in keep),
+        "passage_from": " ".join(PASSAGES[k]["from"] for k in keep),
+        "passage_to": " ".join(PASSAGES[k]["to"] for k in keep),
+    }
+    dims = tuple("passage" if d == "island" else d for d in v.dims)
+    return xr.Variable(dims, v.data, attrs), keep
 
 
 def passage_transport(taux, tauy, *, passage="indonesian", ocean_mask=None,
@@ -1275,8 +1280,8 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
     ``tx``, ``ty``: canonical SI stress; ``prepared``: already NaN outside the water and
     gap-filled as ``fill_gaps`` asks. ``psi`` must be the scan's own array, which nothing else
     reads: the constants are added to it in place. Returns the new streamfunction, the
-    boundary current against each basin row's western coast (..., basin, lat), and a Dataset
-    of the island variables on the canonical grid (None without islands).
+    boundary current against each basin row's western coast (..., basin, lat), and the island
+    variables (name -> Variable, canonical latitude order; None without islands).
     """
     lat, lon = geo.layout.lat_name, geo.layout.lon_name
     paths, lines, table = _island_setup(geo, plan, equatorial_half_width)
@@ -1306,54 +1311,54 @@ def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, p
         return new_psi, basin_bc, None
     status = np.array([p.status for p in paths], dtype=np.int8)
     names = np.array([p.name for p in paths], dtype=object)
-    extra = xr.Dataset(
-        {
-            "island_transport": T.assign_attrs(
-                **_TRANSPORT_ATTRS,
-                comment="see sverdrup_kit.island_rule; NaN where the rule is refused "
-                "(island_rule_status), and the island's constant is then zero"),
-            "island_boundary_current_transport": island_bc.assign_attrs(
-                long_name="western boundary current against the eastern coast of each island",
-                units=SV_UNITS,
-                comment="northward, per row: streamfunction at the western face of the water "
-                "east of the island minus the island's constant; NaN in rows where the island "
-                "has no such water. An island that is the western coast of a basin row (Australia "
-                "in the Pacific) has that current in boundary_current_transport instead"),
-            "island_rule_status": ("island", status, _STATUS_ATTRS),
-            "north_tip_lat": ("island", [g.lat_edges[p.rows[1] + 1] if not p.status & 32
-                                         else np.nan for p in paths],
-                              {"long_name": "latitude of the northern leg",
-                               "units": "degrees_north"}),
-            "south_tip_lat": ("island", [g.lat_edges[p.rows[0]] if not p.status & 32
-                                         else np.nan for p in paths],
-                              {"long_name": "latitude of the southern leg",
-                               "units": "degrees_north"}),
-        },
-        coords={"island": ("island", names, {"long_name": "island"})},
-    )
-    through = _passages(T, list(names)) if geo.earth else None
+    # Plain variables (canonical latitude order), joined to the result in one update.
+    extra = {
+        "island": xr.Variable("island", names, {"long_name": "island"}),
+        "island_transport": xr.Variable(T.dims, T.data, {
+            **_TRANSPORT_ATTRS,
+            "comment": "see sverdrup_kit.island_rule; NaN where the rule is refused "
+            "(island_rule_status), and the island's constant is then zero"}),
+        "island_boundary_current_transport": xr.Variable(island_bc.dims, island_bc.data, {
+            "long_name": "western boundary current against the eastern coast of each island",
+            "units": SV_UNITS,
+            "comment": "northward, per row: streamfunction at the western face of the water "
+            "east of the island minus the island's constant; NaN in rows where the island "
+            "has no such water. An island that is the western coast of a basin row (Australia "
+            "in the Pacific) has that current in boundary_current_transport instead"}),
+        "island_rule_status": xr.Variable("island", status, _STATUS_ATTRS),
+        "north_tip_lat": xr.Variable("island", [g.lat_edges[p.rows[1] + 1] if not p.status & 32
+                                                else np.nan for p in paths],
+                                     {"long_name": "latitude of the northern leg",
+                                      "units": "degrees_north"}),
+        "south_tip_lat": xr.Variable("island", [g.lat_edges[p.rows[0]] if not p.status & 32
+                                                else np.nan for p in paths],
+                                     {"long_name": "latitude of the southern leg",
+                                      "units": "degrees_north"}),
+    }
+    through = _passages(extra["island_transport"], list(names)) if geo.earth else None
     if through is not None:
-        extra["passage_transport"] = through
+        extra["passage_transport"] = through[0]
+        extra["passage"] = xr.Variable("passage", through[1])
     return new_psi, basin_bc, extra
 
 
 def add_island_variables(ds, basin_bc, islands, lat):
     """Put the island rule's results into a Sverdrup result (in the user's latitude order).
 
-    The new variables go in as plain variables on the result's own coordinates, so that the
-    coordinates keep their attributes; all in one update of the result.
+    ``islands``: name -> Variable from :func:`sverdrup_island_constants`. The new variables go
+    in as plain variables on the result's own coordinates, so that the coordinates keep their
+    attributes; all in one update of the result.
     """
     order = ds[lat].values
     canonical = basin_bc[lat].values
     take = None if np.array_equal(canonical, order) else matching_positions(canonical, order)
 
-    def on_ds(da):
-        v = da.variable
+    def on_ds(v):
         return v.isel({lat: take}) if take is not None and lat in v.dims else v
 
     ds = ds.copy()
-    bc = on_ds(basin_bc.transpose(*ds.boundary_current_transport.dims)).copy(deep=False)
-    bc.attrs = {
+    bc = on_ds(basin_bc.transpose(*ds.boundary_current_transport.dims).variable)
+    bc = xr.Variable(bc.dims, bc.data, {
         "long_name": "western boundary current against the western coast of the basin",
         "units": SV_UNITS,
         "comment": "northward: streamfunction at the western face of the westernmost interior "
@@ -1361,20 +1366,14 @@ def add_island_variables(ds, basin_bc, islands, lat):
         "it is minus the interior transport plus the constant of the row's eastern coast "
         "minus the island boundary currents (island_boundary_current_transport); NaN in "
         "rows left empty (row_status)",
-    }
+    })
     new = {"boundary_current_transport": bc}
     ds.sverdrup_streamfunction.attrs["comment"] = (
         ds.sverdrup_streamfunction.attrs["comment"].replace(
             "restarts at zero west of each large island", "west of a large island it starts "
             "from the island's constant from Godfrey's island rule (island_transport)"))
     if islands is not None:
-        ds = ds.assign_coords(island=islands["island"])
-        for name, da in islands.data_vars.items():
-            lead = [d for d in da.dims if d not in ("island", "passage", lat)]
-            core = [d for d in ("island", "passage", lat) if d in da.dims]
-            new[name] = on_ds(da.transpose(*lead, *core))
-        if "passage" in islands.coords:
-            new["passage"] = islands["passage"].variable
+        new.update({name: on_ds(v) for name, v in islands.items()})
     ds.update(new)
     ds.attrs["island_rule"] = ("Godfrey (1989): island constants of the streamfunction from "
                                "the island rule, applied island by island")
