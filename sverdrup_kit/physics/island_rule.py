@@ -70,6 +70,7 @@ from ..geometry.basins import (
 from ..geometry.coords import (
     GridLayout,
     check_same_grid,
+    matching_positions,
     require_dataarray,
     to_canonical,
 )
@@ -333,12 +334,30 @@ class IslandPath:
     labels: set
     status: int
     rows: tuple  # (jb, jt): southernmost and northernmost island rows
-    corners: list  # base path, (J, I) corners with unwrapped I
-    legs: list  # leg (0 north, 1 east, 2 south, 3 west) of each step between corners
+    corners: np.ndarray  # base path, (n, 2) corners (J, I) with unwrapped I
+    legs: np.ndarray  # leg (0 north, 1 east, 2 south, 3 west) of each step between corners
     weights: list  # per variant: (Wx, Wy) sparse (4 legs, ny*nx)
     dfs: np.ndarray  # per variant: f_S - f_N
     basin: str
     coast_basin: str
+
+
+def land_cells(geo: LandGeometry) -> dict:
+    """Land label -> flat indices of its cells, worked out once per land geometry (one sort
+    instead of one pass over the grid per island)."""
+    cache = geo.__dict__.setdefault("_island_cache", {})
+    if "cells" not in cache:
+        flat = geo.land_labels.ravel()
+        land = np.flatnonzero(flat >= 0)
+        order = land[np.argsort(flat[land], kind="stable")]
+        labs, starts = np.unique(flat[order], return_index=True)
+        cache["cells"] = dict(zip(labs.tolist(), np.split(order, starts[1:])))
+    return cache["cells"]
+
+
+def _island_cells(geo: LandGeometry, labs) -> np.ndarray:
+    cells = land_cells(geo)
+    return np.sort(np.concatenate([cells[k] for k in labs if k in cells] or [np.zeros(0, int)]))
 
 
 def _unwrap_columns(cols, nx, periodic):
@@ -359,170 +378,214 @@ def _unwrap_columns(cols, nx, periodic):
     return int((b[k] + start) % nx)
 
 
-def _island_profile(mask, j_lo, j_hi, shift, nx):
-    """Westernmost and easternmost unwrapped columns of the island in each row j_lo..j_hi."""
-    rows = np.flatnonzero(mask.any(axis=1))
-    W, E = {}, {}
-    for j in range(j_lo, j_hi + 1):
-        # Rows beyond the island, or between the pieces of a composite island, take the
-        # profile of the nearest island row.
-        jj = int(rows[np.argmin(np.abs(rows - j))])
-        c = (np.flatnonzero(mask[jj]) - shift) % nx + shift
-        W[j], E[j] = int(c.min()), int(c.max())
-    return W, E
+def _island_profile(rows, ucols, J):
+    """Westernmost and easternmost unwrapped columns of the island in each row of ``J``.
+
+    ``rows``, ``ucols``: row and unwrapped column of each island cell. Rows beyond the island,
+    or between the pieces of a composite island, take the profile of the nearest island row
+    (the southern one of two at the same distance).
+    """
+    occ = np.unique(rows)
+    lo = np.full(occ.size, np.iinfo(np.int64).max)
+    hi = np.full(occ.size, np.iinfo(np.int64).min)
+    k = np.searchsorted(occ, rows)
+    np.minimum.at(lo, k, ucols)
+    np.maximum.at(hi, k, ucols)
+    s = np.clip(np.searchsorted(occ, J), 1, max(occ.size - 1, 1))
+    below = np.clip(s - 1, 0, occ.size - 1)
+    above = np.clip(s, 0, occ.size - 1)
+    near = np.where(np.abs(J - occ[below]) <= np.abs(occ[above] - J), below, above)
+    return lo[near], hi[near]
 
 
-def _eastern_coast(geo, labs, j, start, span_end):
-    """Unwrapped column of the first coast cell east of ``start`` in row j, flags, coast body.
+def _eastern_coasts(geo, labs, J, start, span_end):
+    """Per row of ``J``: unwrapped column of the first coast cell east of ``start``, flags and
+    coast body (-1 and flag 16 where there is none).
 
-    A dividing line that stands for a coast counts only east of the island's whole span
+    Scans east from ``start`` over at most one turn of the globe. A coast is a continent, or a
+    dividing line that stands for a coast -- which counts only east of the island's whole span
     (``span_end``, its easternmost unwrapped column in any row): a strait inside a composite
-    island (Bass Strait inside Australia with Tasmania) is not its eastern coast.
+    island (Bass Strait inside Australia with Tasmania) is not its eastern coast (body -2).
+    Meeting the island itself again (round the globe) or the edge of the grid is no coast;
+    another large island on the way sets flag 8.
     """
     g = geo.grid
     nx = g.shape[1]
-    flags = 0
-    for i in range(start, start + nx + 1):
-        if not g.periodic and i >= nx:
-            return None, flags | 16, -1
+    labs = np.fromiter(labs, dtype=np.int64)
+    n = J.size
+    col = np.full(n, -1, dtype=np.int64)
+    body = np.full(n, -1, dtype=np.int64)
+    flags = np.zeros(n, dtype=np.int64)
+    gate = np.maximum(start, span_end + 1)
+    todo = np.arange(n)
+    # Most rows meet a coast within a few cells: scan in growing blocks of columns.
+    t0, width = 0, 32
+    while todo.size and t0 <= nx:
+        t = np.arange(t0, min(t0 + width, nx + 1))
+        i = start[todo, None] + t
+        j = J[todo, None]
         c = i % nx
-        if i > max(start, span_end + 1) and geo.coast_e[j, (i - 1) % nx]:
-            return i, flags, -2
-        lab = int(geo.land_labels[j, c])
-        if lab in labs:
-            if i > start:
-                return None, flags | 16, -1  # round the globe back to the island
-            continue
-        k = int(geo.cls[j, c])
-        if k == CONTINENT:
-            return i, flags, lab
-        if k == LARGE_ISLAND:
-            flags |= 8
-    return None, flags | 16, -1
+        lab = geo.land_labels[j, c]
+        own = np.isin(lab, labs)
+        edge = (i >= nx) if not g.periodic else np.zeros(i.shape, dtype=bool)
+        line = (i > gate[todo, None]) & geo.coast_e[j, (i - 1) % nx]
+        back = own & (i > start[todo, None])
+        k = geo.cls[j, c]
+        cont = ~own & (k == CONTINENT)
+        event = edge | line | back | cont
+        hit = event.any(axis=1)
+        first = np.where(hit, event.argmax(axis=1), t.size)
+        before = t[None, :] - t0 < first[:, None]
+        flags[todo] |= np.where(((k == LARGE_ISLAND) & ~own & before).any(axis=1), 8, 0)
+        r = np.flatnonzero(hit)
+        q = first[r]
+        e, li, bk = edge[r, q], line[r, q], back[r, q]
+        rows = todo[r]
+        # In the order the checks apply at one cell: grid edge, coastal line, the island
+        # itself, a continent.
+        flags[rows[e | (~li & bk)]] |= 16
+        at_line = ~e & li
+        at_cont = ~e & ~li & ~bk
+        col[rows[at_line | at_cont]] = i[r, q][at_line | at_cont]
+        body[rows[at_line]] = -2
+        body[rows[at_cont]] = lab[r, q][at_cont]
+        todo = todo[~hit]
+        t0, width = t0 + t.size, 4 * width
+    flags[todo] |= 16
+    return col, flags, body
+
+
+def _segments(J, a, b):
+    """Corners (J, I) of straight runs along fixed J from ``a`` to ``b`` (both included)."""
+    n = np.abs(b - a) + 1
+    step = np.where(b > a, 1, -1)
+    k = np.arange(n.sum()) - np.repeat(np.cumsum(n) - n, n)
+    return np.repeat(J, n), np.repeat(a, n) + np.repeat(step, n) * k
 
 
 def _path_corners(W, C, j_lo, j_hi):
-    """Clockwise corners (J, I): north leg, eastern coast, south leg, western coast."""
-    pts = [(j_hi + 1, W[j_hi])]
-    leg = []
+    """Clockwise corners (J, I): north leg, eastern coast, south leg, western coast.
 
-    def go(J, I, which):
-        pts.append((J, I))
-        leg.append(which)
-
-    for i in range(W[j_hi] + 1, C[j_hi] + 1):
-        go(j_hi + 1, i, 0)
-    for j in range(j_hi, j_lo - 1, -1):
-        go(j, C[j], 1)
-        if j > j_lo:
-            step = 1 if C[j - 1] > C[j] else -1
-            for i in range(C[j] + step, C[j - 1] + step, step):
-                go(j, i, 1)
-    step = -1 if W[j_lo] < C[j_lo] else 1
-    for i in range(C[j_lo] + step, W[j_lo] + step, step):
-        go(j_lo, i, 2)
-    for j in range(j_lo, j_hi + 1):
-        go(j + 1, W[j], 3)
-        if j < j_hi:
-            step = 1 if W[j + 1] > W[j] else -1
-            for i in range(W[j] + step, W[j + 1] + step, step):
-                go(j + 1, i, 3)
-    return pts, leg
+    ``W``, ``C``: westernmost island column and eastern-coast column of rows j_lo..j_hi.
+    Returns the corners (n, 2) and the leg of each of the n - 1 steps.
+    """
+    rows = np.arange(j_lo, j_hi + 1)
+    # North: from the island's north-western corner east to the coast.
+    nJ, nI = _segments(np.array([j_hi + 1]), W[-1:], C[-1:])
+    # East: down the coast row by row, then (last row) west to the island: the south leg.
+    eJ, eI = _segments(rows[::-1], C[::-1], np.concatenate([C[::-1][1:], W[:1]]))
+    # West: up the island's western coast back to the first corner.
+    wJ, wI = _segments(rows + 1, W, np.concatenate([W[1:], W[-1:]]))
+    J = np.concatenate([nJ, eJ, wJ])
+    I = np.concatenate([nI, eI, wI])
+    south = eJ.size - 1 - np.abs(C[0] - W[0])  # first corner of the south leg in eJ
+    legs = np.concatenate([np.zeros(nJ.size - 1, np.int8), np.ones(south + 1, np.int8),
+                           np.full(eJ.size - 1 - south, 2, np.int8),
+                           np.full(wJ.size, 3, np.int8)])
+    return np.column_stack([J, I]), legs
 
 
 def _weights(geo, pts, legs):
-    """Sparse (4 legs, ny*nx) weights on taux and tauy: the clockwise line integral."""
+    """Sparse (4 legs, ny*nx) weights on taux and tauy: the clockwise line integral.
+
+    Each step between two corners is a cell face; it takes the mean of the cells beside it
+    (one where the other lies beyond the grid) times its signed length.
+    """
     g = geo.grid
     ny, nx = g.shape
     R = g.radius
     lat_e = np.deg2rad(g.lat_edges)
-    rx, cx, vx, ry, cy, vy = [], [], [], [], [], []
-    for (J0, I0), (J1, I1), leg in zip(pts[:-1], pts[1:], legs):
-        if J0 == J1:  # zonal edge between cells (J-1, I) and (J, I)
-            I = min(I0, I1)
-            s = 1.0 if I1 > I0 else -1.0
-            length = R * np.cos(lat_e[J0]) * g.dlon_rad[I % nx]
-            cells = [(J0 - 1, I % nx), (J0, I % nx)]
-            tgt = (rx, cx, vx)
-        else:  # meridional edge between cells (J, I-1) and (J, I)
-            J = min(J0, J1)
-            s = 1.0 if J1 > J0 else -1.0
-            length = R * (lat_e[J + 1] - lat_e[J])
-            cells = [(J, (I0 - 1) % nx), (J, I0 % nx)]
-            tgt = (ry, cy, vy)
-        use = [(a, b) for a, b in cells if 0 <= a < ny]
-        for a, b in use:
-            tgt[0].append(leg)
-            tgt[1].append(a * nx + b)
-            tgt[2].append(s * length / len(use))
-    shape = (len(LEGS), ny * nx)
-    Wx = sp.csr_matrix((vx, (rx, cx)), shape=shape)
-    Wy = sp.csr_matrix((vy, (ry, cy)), shape=shape)
-    return Wx, Wy
+    pts = np.asarray(pts, dtype=np.int64)
+    legs = np.asarray(legs, dtype=np.int64)
+    (J0, I0), (J1, I1) = pts[:-1].T, pts[1:].T
+    zonal = J0 == J1
+    out = []
+    for sel, is_zonal in ((zonal, True), (~zonal, False)):
+        j0, i0, j1, i1, leg = J0[sel], I0[sel], J1[sel], I1[sel], legs[sel]
+        if is_zonal:  # edge between cells (J-1, I) and (J, I)
+            i = np.minimum(i0, i1) % nx
+            s = np.where(i1 > i0, 1.0, -1.0)
+            length = R * np.cos(lat_e[j0]) * g.dlon_rad[i]
+            ca = np.stack([j0 - 1, j0], axis=1), np.stack([i, i], axis=1)
+        else:  # edge between cells (J, I-1) and (J, I)
+            j = np.minimum(j0, j1)
+            s = np.where(j1 > j0, 1.0, -1.0)
+            length = R * (lat_e[j + 1] - lat_e[j])
+            ca = np.stack([j, j], axis=1), np.stack([(i0 - 1) % nx, i0 % nx], axis=1)
+        rows, cols = ca
+        use = (rows >= 0) & (rows < ny)
+        w = (s * length / use.sum(axis=1))[:, None] * np.ones((1, 2))
+        out.append(sp.csr_matrix(
+            (w[use], (np.repeat(leg[:, None], 2, axis=1)[use], (rows * nx + cols)[use])),
+            shape=(len(LEGS), ny * nx)))
+    return tuple(out)
 
 
-def island_paths(geo: LandGeometry, selection: dict, equatorial_half_width) -> list:
-    """Paths of the island rule for each selected island (geometry only)."""
+def island_paths(geo: LandGeometry, selection: dict, equatorial_half_width,
+                 variants=_VARIANTS) -> list:
+    """Paths of the island rule for each selected island (geometry only).
+
+    ``variants``: the (north shift, south shift) of the tips for which weights are made; the
+    base path ``(0, 0)`` must be first (it sets the status).
+    """
     g = geo.grid
     ny, nx = g.shape
     f_e = coriolis_parameter(g.lat_edges, omega=g.omega)
     out = []
     for name, labs in selection.items():
-        mask = np.isin(geo.land_labels, list(labs))
-        rows = np.flatnonzero(mask.any(axis=1))
-        cols = np.flatnonzero(mask.any(axis=0))
+        cells = _island_cells(geo, labs)
+        rows_c, cols_c = cells // nx, cells % nx
+        cols = np.unique(cols_c)
         shift = _unwrap_columns(cols, nx, g.periodic)
         status = 0
-        jb, jt = int(rows[0]), int(rows[-1])
+        jb, jt = int(rows_c[0]), int(rows_c[-1])
         if shift is None or jb == 0 or jt == ny - 1 or (not g.periodic and (
                 cols[0] == 0 or cols[-1] == nx - 1)):
             status |= 32
         basin = coast_basin = ""
-        weights, dfs, corners, corner_legs = [], [], [], []
+        weights, dfs = [None] * len(variants), np.full(len(variants), np.nan)
+        corners, corner_legs = np.zeros((0, 2), np.int64), np.zeros(0, np.int8)
         if not status & 32:
-            for dn, ds in _VARIANTS:
+            # Every variant's rows lie within one row of the island's: profile and coasts
+            # worked out once for those rows.
+            lo, hi = max(jb - 1, 1), min(jt + 1, ny - 2)
+            J = np.arange(lo, hi + 1)
+            ucols = (cols_c - shift) % nx + shift
+            W, E = _island_profile(rows_c, ucols, J)
+            C, fl, body = _eastern_coasts(geo, labs, J, E + 1, int(ucols.max()))
+            for v, (dn, ds) in enumerate(variants):
                 j_lo, j_hi = jb - ds, jt + dn
-                ok = j_lo <= j_hi and j_lo >= 1 and j_hi <= ny - 2
-                if not ok:
-                    weights.append(None)
-                    dfs.append(np.nan)
+                if not (j_lo <= j_hi and j_lo >= 1 and j_hi <= ny - 2):
                     continue
-                W, E = _island_profile(mask, j_lo, j_hi, shift, nx)
-                span_end = int(((cols - shift) % nx + shift).max())
-                C, bodies, flags = {}, set(), 0
-                for j in range(j_lo, j_hi + 1):
-                    C[j], fl, body = _eastern_coast(geo, labs, j, E[j] + 1, span_end)
-                    flags |= fl
-                    bodies.add(body)
+                part = slice(j_lo - lo, j_hi - lo + 1)
+                flags = int(np.bitwise_or.reduce(fl[part]))
                 if flags & 16:
-                    weights.append(None)
-                    dfs.append(np.nan)
                     if (dn, ds) == (0, 0):
                         status |= 16
                     continue
-                pts, legs = _path_corners(W, C, j_lo, j_hi)
-                weights.append(_weights(geo, pts, legs))
-                dfs.append(float(f_e[j_lo] - f_e[j_hi + 1]))
+                pts, legs = _path_corners(W[part], C[part], j_lo, j_hi)
+                weights[v] = _weights(geo, pts, legs)
+                dfs[v] = float(f_e[j_lo] - f_e[j_hi + 1])
                 if (dn, ds) == (0, 0):
                     corners, corner_legs = pts, legs
                     status |= flags
-                    if len(bodies) > 1:
+                    if np.unique(body[part]).size > 1:
                         status |= 4
                     band = equatorial_half_width
                     if min(abs(g.lat_edges[j_lo]), abs(g.lat_edges[j_hi + 1])) < band:
                         status |= 1
-                    jm = (jb + jt) // 2
+                    jm = (jb + jt) // 2 - lo
                     e_next = (E[jm] + 1) % nx
                     c_last = (C[jm] - 1) % nx
-                    b1, b2 = int(geo.bid[jm, e_next]), int(geo.bid[jm, c_last])
+                    b1, b2 = int(geo.bid[J[jm], e_next]), int(geo.bid[J[jm], c_last])
                     basin = geo.names[b1] if b1 >= 0 else ""
                     coast_basin = geo.names[b2] if b2 >= 0 else ""
                     if b1 != b2:
                         status |= 2
         if status & 32:
-            weights, dfs = [None] * len(_VARIANTS), [np.nan] * len(_VARIANTS)
+            weights, dfs = [None] * len(variants), np.full(len(variants), np.nan)
         out.append(IslandPath(name, labs, status, (jb, jt), corners, corner_legs, weights,
-                              np.asarray(dfs), basin, coast_basin))
+                              dfs, basin, coast_basin))
     return out
 
 
@@ -555,29 +618,104 @@ def _carry_along(a, axis, periodic):
     return np.moveaxis(out, -1, axis)
 
 
-def _circulation_kernel(tx, ty, *, water, fill_gaps, periodic, Wx, Wy):
-    tx = np.asarray(tx, dtype=np.float64)
-    ty = np.asarray(ty, dtype=np.float64)
+@dataclass
+class LineIntegrals:
+    """Clockwise line integrals of the stress as sparse weights, ready for many fields.
+
+    ``Wx``, ``Wy`` (rows, ny*nx): weights on the stress of every cell, a cell on land taking
+    the stress carried in along its row (:func:`_carry_along`). Where the stress is present in
+    every water cell of the rows the paths touch -- every field, once gaps are filled -- a land
+    cell's carried stress is that of the nearest water cell of its row, which the grid and mask
+    alone decide: ``Mx``, ``My`` (rows, m) are the same weights moved onto those water cells,
+    ``source`` (m,) their flat indices, and ``dry`` (rows,) marks a path through a row with no
+    water at all (NaN).
+    """
+
+    Wx: sp.csr_matrix
+    Wy: sp.csr_matrix
+    touched: np.ndarray  # grid rows the paths touch
+    source: np.ndarray
+    Mx: sp.csr_matrix
+    My: sp.csr_matrix
+    dry: np.ndarray
+
+
+def line_integrals(Wx, Wy, water, periodic) -> LineIntegrals:
+    """Precompute :class:`LineIntegrals` from stacked weights and the water mask (ny, nx)."""
+    ny, nx = water.shape
+    Wx, Wy = Wx.tocsr(), Wy.tocsr()
+    cells = np.unique(np.concatenate([Wx.indices, Wy.indices]))
+    touched = np.unique(cells // nx)
+    flat = np.arange(ny * nx, dtype=np.float64).reshape(ny, nx)[touched]
+    nearest = _carry_along(np.where(water[touched], flat, np.nan), -1, periodic)
+    pos = np.full(ny, -1, dtype=np.int64)
+    pos[touched] = np.arange(touched.size)
+    near = nearest[pos[cells // nx], cells % nx]
+    wet = np.isfinite(near)
+    source = np.unique(near[wet].astype(np.int64))
+    col = np.full(ny * nx, -1, dtype=np.int64)
+    col[cells[wet]] = np.searchsorted(source, near[wet].astype(np.int64))
+    dry = np.zeros(Wx.shape[0], dtype=bool)
+    moved = []
+    for W in (Wx, Wy):
+        coo = W.tocoo()
+        c = col[coo.col]
+        dry[coo.row[c < 0]] = True
+        keep = c >= 0
+        moved.append(sp.csr_matrix((coo.data[keep], (coo.row[keep], c[keep])),
+                                   shape=(W.shape[0], source.size)))
+    return LineIntegrals(Wx, Wy, touched, source, moved[0], moved[1], dry)
+
+
+def _prepare(tx, ty, *, water, fill_gaps, periodic):
+    """Both components missing where either is and outside ``water``; gaps inside the water
+    filled (``fill_gaps``) as for the integral."""
     missing = ~(np.isfinite(tx) & np.isfinite(ty)) | ~water
-    tx = np.where(missing, np.nan, tx)
-    ty = np.where(missing, np.nan, ty)
+    tx, ty = np.where(missing, np.nan, tx), np.where(missing, np.nan, ty)
     if fill_gaps:
         tx = fill_from_neighbours(tx, target=water, periodic=periodic)
         ty = fill_from_neighbours(ty, target=water, periodic=periodic)
-    # Along the row for both components: a zonal face then takes its row's stress, a
-    # meridional face on a coast the stress of the water beside it.
-    # Only the rows the paths touch matter.
-    rows = np.unique(np.concatenate([Wx.indices, Wy.indices]) // tx.shape[-1])
-    tx[..., rows, :] = _carry_along(tx[..., rows, :], -1, periodic)
-    ty[..., rows, :] = _carry_along(ty[..., rows, :], -1, periodic)
+    return tx, ty
+
+
+def _circulation(tx, ty, lines: LineIntegrals, periodic):
+    """Line integrals (k, rows) of stress fields (k, ny, nx) that are NaN outside the water.
+
+    Fields with stress in every water cell the paths need take the precomputed weights (a
+    gather and one sparse product); the others (a region left without stress) carry the
+    stress along each touched row first, and a path through a cell that still has none gives
+    NaN.
+    """
+    k, ny, nx = tx.shape
+    fx, fy = tx.reshape(k, ny * nx), ty.reshape(k, ny * nx)
+    sx, sy = fx[:, lines.source], fy[:, lines.source]
+    full = np.isfinite(sx).all(axis=1) & np.isfinite(sy).all(axis=1)
+    out = np.empty((k, lines.Wx.shape[0]))
+    if full.any():
+        fast = (lines.Mx @ sx[full].T + lines.My @ sy[full].T).T
+        out[full] = np.where(lines.dry, np.nan, fast)
+    if not full.all():
+        rows = lines.touched
+        gx, gy = tx[~full], ty[~full]
+        gx[:, rows, :] = _carry_along(gx[:, rows, :], -1, periodic)
+        gy[:, rows, :] = _carry_along(gy[:, rows, :], -1, periodic)
+        gx, gy = gx.reshape(-1, ny * nx), gy.reshape(-1, ny * nx)
+        Wx, Wy = lines.Wx, lines.Wy
+        slow = (Wx @ np.nan_to_num(gx.T, nan=0.0)).T + (Wy @ np.nan_to_num(gy.T, nan=0.0)).T
+        bad = ((abs(Wx) @ np.isnan(gx).T.astype(float)).T
+               + (abs(Wy) @ np.isnan(gy).T.astype(float)).T)
+        out[~full] = np.where(bad > 0, np.nan, slow)
+    return out
+
+
+def _circulation_kernel(tx, ty, *, water, fill_gaps, periodic, lines):
+    """Leg circulations (..., rows) of raw stress (..., ny, nx): gaps filled, then the lines."""
+    tx, ty = _prepare(np.asarray(tx, dtype=np.float64), np.asarray(ty, dtype=np.float64),
+                      water=water, fill_gaps=fill_gaps, periodic=periodic)
     lead = tx.shape[:-2]
-    fx = tx.reshape(-1, tx.shape[-2] * tx.shape[-1])
-    fy = ty.reshape(-1, ty.shape[-2] * ty.shape[-1])
-    out = (Wx @ np.nan_to_num(fx.T, nan=0.0)).T + (Wy @ np.nan_to_num(fy.T, nan=0.0)).T
-    # A path through a cell with no stress at all (a whole basin missing) gives NaN.
-    bad = (abs(Wx) @ np.isnan(fx).T.astype(float)).T + (abs(Wy) @ np.isnan(fy).T.astype(float)).T
-    out = np.where(bad > 0, np.nan, out)
-    return out.reshape(lead + (Wx.shape[0],))
+    shape = (-1,) + tx.shape[-2:]
+    out = _circulation(tx.reshape(shape), ty.reshape(shape), lines, periodic)
+    return out.reshape(lead + (out.shape[-1],))
 
 
 def _stack(paths, ny, nx):
@@ -585,8 +723,7 @@ def _stack(paths, ny, nx):
     blocks_x, blocks_y, meta = [], [], []
     empty = sp.csr_matrix((len(LEGS), ny * nx))
     for p in paths:
-        for v in range(len(_VARIANTS)):
-            w = p.weights[v] if p.weights else None
+        for w in p.weights:
             blocks_x.append(w[0] if w is not None else empty)
             blocks_y.append(w[1] if w is not None else empty)
             meta.append(w is not None)
@@ -599,7 +736,8 @@ def rule_transport(tx, ty, paths, geo, *, rho0, fill_gaps):
     ny, nx = g.shape
     lat, lon = geo.layout.lat_name, geo.layout.lon_name
     Wx, Wy, has = _stack(paths, ny, nx)
-    nv, nl = len(_VARIANTS), len(LEGS)
+    lines = line_integrals(Wx, Wy, geo.water, g.periodic)
+    nv, nl = len(paths[0].weights), len(LEGS)
     circ = xr.apply_ufunc(
         _circulation_kernel,
         whole_fields(tx, (lat, lon)), whole_fields(ty, (lat, lon)),
@@ -608,7 +746,7 @@ def rule_transport(tx, ty, paths, geo, *, rho0, fill_gaps):
         dask="parallelized",
         output_dtypes=[np.float64],
         dask_gufunc_kwargs={"output_sizes": {"_row": Wx.shape[0]}},
-        kwargs=dict(water=geo.water, fill_gaps=fill_gaps, periodic=g.periodic, Wx=Wx, Wy=Wy),
+        kwargs=dict(water=geo.water, fill_gaps=fill_gaps, periodic=g.periodic, lines=lines),
     )
     lead = [d for d in circ.dims if d != "_row"]
     shape = [circ.sizes[d] for d in lead]
@@ -793,13 +931,12 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
     edges_lon = g.lon_edges
     nx = g.shape[1]
     for k, p in enumerate(paths):
-        area[k] = g.cell_area[np.isin(geo.land_labels, list(p.labels))].sum() / 1e6
+        area[k] = g.cell_area.ravel()[_island_cells(geo, p.labels)].sum() / 1e6
         if p.status & 48:
             continue
         nlat[k] = g.lat_edges[p.rows[1] + 1]
         slat[k] = g.lat_edges[p.rows[0]]
-        J = np.array([c[0] for c in p.corners])
-        I = np.array([c[1] for c in p.corners])
+        J, I = p.corners.T
         x = edges_lon[I % nx] + 360.0 * (I // nx) if g.periodic else edges_lon[np.clip(I, 0, nx)]
         base_lon = lo - d / 2.0
         x0 = base_lon + np.mod(x[0] - base_lon, 360.0)
@@ -852,9 +989,10 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
         coords={"island": island, "leg": ("leg", list(LEGS)),
                 "tip": ("tip", ["north", "south"]), "shift": ("shift", [-1, 1])},
     )
-    through = _passages(base, names) if geo.earth else None
+    through = _passages(base.variable, names) if geo.earth else None
     if through is not None:
-        ds["passage_transport"] = through
+        ds = ds.assign_coords(passage=through[1])
+        ds["passage_transport"] = through[0]
     ds.attrs.update(
         rho0=rho0, equatorial_half_width=band,
         method="Godfrey (1989) island rule, applied island by island; path on cell faces, "
@@ -868,22 +1006,22 @@ def _assemble(legs, paths, geo, original, *, rho0, band):
 
 
 def _passages(base, names):
-    out = []
-    keep = []
-    for name, spec in PASSAGES.items():
-        if spec["island"] in names:
-            out.append(base.isel(island=names.index(spec["island"])))
-            keep.append(name)
-    if not out:
+    """The island transports that are passage throughflows: (Variable (..., passage), names)
+    or None. ``base``: Variable (..., island)."""
+    keep = [k for k, spec in PASSAGES.items() if spec["island"] in names]
+    if not keep:
         return None
-    da = xr.concat(out, "passage").assign_coords(passage=keep)
-    da = da.transpose(..., "passage")
-    return da.assign_attrs(
-        long_name="throughflow of an open passage from Godfrey's island rule", units=SV_UNITS,
-        comment="; ".join(f"{k}: {PASSAGES[k]['comment']}" for k in keep),
-        passage_from=" ".join(PASSAGES[k]["from"] for k in keep),
-        passage_to=" ".join(PASSAGES[k]["to"] for k in keep),
-    )
+    at = [names.index(PASSAGES[k]["island"]) for k in keep]
+    v = base.isel(island=at)
+    attrs = {
+        "long_name": "throughflow of an open passage from Godfrey's island rule",
+        "units": SV_UNITS,
+        "comment": "; ".join(f"{k}: {PASSAGES[k]['comment']}" for k in keep),
+        "passage_from": " ".join(PASSAGES[k]["from"] for k in keep),
+        "passage_to": " ".join(PASSAGES[k]["to"] for k in keep),
+    }
+    dims = tuple("passage" if d == "island" else d for d in v.dims)
+    return xr.Variable(dims, v.data, attrs), keep
 
 
 def passage_transport(taux, tauy, *, passage="indonesian", ocean_mask=None,
@@ -941,17 +1079,26 @@ def passage_transport(taux, tauy, *, passage="indonesian", ocean_mask=None,
 
 @dataclass
 class _RunTable:
-    """Per run of the westward integral: what sets its constant, and its western end."""
+    """What sets the constant of each run of the westward integral, resolved once per grid,
+    mask and options so that a field needs only gathers and sparse products.
 
-    lengths: np.ndarray
-    kind: np.ndarray  # 0 none (continent: zero), 1 island constant, 2 passage continuation
-    source: np.ndarray  # island index (kind 1) or source run (kind 2)
-    across: np.ndarray  # flat cell east of the run across the passage (kind 2)
-    order: np.ndarray  # kind-2 runs, sources first
-    west_cell: np.ndarray
-    west_island: np.ndarray  # island index of the land west of the run, -1 none
-    basin_slot: np.ndarray  # b * ny + j where the run is a valid row's westernmost main run
-    row: np.ndarray
+    A run starting on an island's western coast takes the island's constant; a run starting on
+    open water continues the water east of it: the value at the western face of the cell
+    across (``across``) plus that run's own constant, and so on along the chain of passages
+    until a run with an island's constant or none.
+    """
+
+    const_runs: np.ndarray  # runs that carry a constant
+    const_island: np.ndarray  # per const run: island at the end of its chain, -1 none
+    chain: sp.csr_matrix  # (const runs, across cells): the faces summed along the chain
+    across_cells: np.ndarray  # flat cells whose western-face value a chain adds
+    const_cells: np.ndarray  # flat cells of the const runs
+    const_of_cell: np.ndarray  # const run (position in const_runs) of each of those cells
+    bc_cells: np.ndarray  # western cell of each run whose boundary current is reported
+    bc_land: np.ndarray  # island west of that run (-1 none: column n_islands of a padded table)
+    basin_slot: np.ndarray  # b * ny + j of the bc runs that are a valid row's main run, -1 none
+    island_sum: sp.csr_matrix  # (n_islands * ny, bc runs): the other bc runs summed per island row
+    island_seen: np.ndarray  # (n_islands * ny,): rows of each island with such a run
     affected: np.ndarray  # (n_basins * ny,): a main run of the row has a constant or an island
 
 
@@ -959,238 +1106,275 @@ def _run_table(plan, geo, paths):
     g = geo.grid
     ny, nx = g.shape
     n_runs = plan.run_starts.size
+    n_isl = len(paths)
     lengths = np.diff(np.concatenate([plan.run_starts, [plan.cells.size]])).astype(np.int64)
     east = plan.cells[plan.run_starts]
     west = plan.cells[plan.run_starts + lengths - 1]
     row = east // nx
+    ie, iw = east % nx, west % nx
     run_of = np.full(ny * nx, -1, dtype=np.int64)
     run_of[plan.cells] = np.repeat(np.arange(n_runs), lengths)
-    island_of = {}
+    # Land label -> island index (refused islands carry no constant); the last entry is for
+    # label -1 (water).
+    island_of = np.full(geo.land_labels.max() + 2, -1, dtype=np.int64)
     for k, p in enumerate(paths):
         if not p.status & 48:
-            for lab in p.labels:
-                island_of[lab] = k
+            island_of[list(p.labels)] = k
     lab = geo.land_labels
     if geo.earth:
         cut, _ = line_cuts(g, [EARTH_DIVIDING_LINES["indonesia"]])
     else:
         cut = np.zeros((ny, nx), dtype=bool)
-    kind = np.zeros(n_runs, dtype=np.int8)
+    kind = np.zeros(n_runs, dtype=np.int8)  # 0 none (continent: zero), 1 island, 2 passage
     source = np.full(n_runs, -1, dtype=np.int64)
-    across = np.zeros(n_runs, dtype=np.int64)
-    west_island = np.full(n_runs, -1, dtype=np.int64)
-    for r in range(n_runs):
-        j, ie, iw = int(row[r]), int(east[r] % nx), int(west[r] % nx)
-        qe = ie + 1
-        if 0 <= qe < nx or g.periodic:
-            qe %= nx
-            # A run that ends on open water (the Indonesian line, or the edge of a marginal sea
-            # that the Earth basins leave out) continues the water east of it; the other
-            # coastal lines stand for land the grid misses (Central America, Bass Strait).
-            opens = cut[j, ie] or not geo.coast_e[j, ie]
-            if opens and geo.water[j, qe] and run_of[j * nx + qe] >= 0:
-                kind[r], source[r], across[r] = 2, run_of[j * nx + qe], j * nx + qe
-            elif int(lab[j, qe]) in island_of:
-                kind[r], source[r] = 1, island_of[int(lab[j, qe])]
-        qw = iw - 1
-        if 0 <= qw < nx or g.periodic:
-            qw %= nx
-            west_island[r] = island_of.get(int(lab[j, qw]), -1)
-    # Passage runs after the runs they continue.
-    pending = [r for r in range(n_runs) if kind[r] == 2]
-    done, order = set(), []
-    for _ in range(len(pending) + 1):
-        rest = []
-        for r in pending:
-            s = source[r]
-            if kind[s] != 2 or s in done:
-                order.append(r)
-                done.add(r)
-            else:
-                rest.append(r)
-        if len(rest) == len(pending):
+    qe = ie + 1
+    has_e = (qe < nx) | g.periodic
+    qe %= nx
+    # A run that ends on open water (the Indonesian line, or the edge of a marginal sea that
+    # the Earth basins leave out) continues the water east of it; the other coastal lines
+    # stand for land the grid misses (Central America, Bass Strait).
+    opens = cut[row, ie] | ~geo.coast_e[row, ie]
+    east_run = run_of[row * nx + qe]
+    passage = has_e & opens & geo.water[row, qe] & (east_run >= 0)
+    kind[passage], source[passage] = 2, east_run[passage]
+    isl_e = island_of[lab[row, qe]]
+    on_island = has_e & ~passage & (isl_e >= 0)
+    kind[on_island], source[on_island] = 1, isl_e[on_island]
+    qw = iw - 1
+    has_w = (qw >= 0) | g.periodic
+    west_island = np.where(has_w, island_of[lab[row, qw % nx]], -1)
+    # Chains of passages: follow each to a run that is not a passage. A chain that never gets
+    # there goes round a loop of passages, where no constant can be carried: none.
+    k2 = np.flatnonzero(kind == 2)
+    reaches = np.zeros(n_runs, dtype=bool)
+    reaches[k2] = kind[source[k2]] != 2
+    while True:
+        more = reaches[k2] | reaches[source[k2]]
+        if np.array_equal(more, reaches[k2]):
             break
-        pending = rest
-    for r in pending:  # a loop of passages: no constant can be carried round it
-        kind[r] = 0
-    # The westernmost main run of each valid basin row.
-    edges = g.lon_edges
-    basin_slot = np.full(n_runs, -1, dtype=np.int64)
+        reaches[k2] = more
+    kind[k2[~reaches[k2]]] = 0
+    const_runs = np.flatnonzero(kind != 0)
+    pos = np.full(n_runs, -1, dtype=np.int64)
+    pos[const_runs] = np.arange(const_runs.size)
+    end = const_runs.copy()
+    owners, faces = [], []
+    live = np.flatnonzero(kind[end] == 2)
+    while live.size:
+        owners.append(live)
+        faces.append(row[end[live]] * nx + qe[end[live]])
+        end[live] = source[end[live]]
+        live = live[kind[end[live]] == 2]
+    const_island = np.where(kind[end] == 1, source[end], -1)
+    owners = np.concatenate(owners or [np.zeros(0, np.int64)])
+    faces = np.concatenate(faces or [np.zeros(0, np.int64)])
+    across_cells, col = np.unique(faces, return_inverse=True)
+    chain = sp.csr_matrix((np.ones(owners.size), (owners, col)),
+                          shape=(const_runs.size, across_cells.size))
+    in_const = pos[np.repeat(np.arange(n_runs), lengths)]
+    const_cells = plan.cells[in_const >= 0]
+    const_of_cell = in_const[in_const >= 0]
+    # The westernmost main run of each valid basin row, and the runs against an island.
+    b = geo.bid[row, iw]
+    valid_row = (b >= 0) & (plan.cell_class[row, iw] == 1)
+    valid_row[valid_row] = plan.row_status[b[valid_row], row[valid_row]] == 0
+    slot = b * ny + row
     affected = np.zeros(len(geo.names) * ny, dtype=bool)
-    for r in range(n_runs):
-        j, iw = int(row[r]), int(west[r] % nx)
-        b = int(geo.bid[j, iw])
-        if b < 0 or plan.row_status[b, j] != 0 or plan.cell_class[j, iw] != 1:
-            continue
-        if kind[r] != 0 or west_island[r] >= 0:
-            affected[b * ny + j] = True
-        d = (edges[iw] - plan.west_lon[b, j]) % 360.0
-        if min(d, 360.0 - d) < 1e-6:
-            basin_slot[r] = b * ny + j
-    return _RunTable(lengths, kind, source, across, np.asarray(order, dtype=np.int64),
-                     west, west_island, basin_slot, row, affected)
+    affected[slot[valid_row & ((kind != 0) | (west_island >= 0))]] = True
+    d = np.full(n_runs, np.inf)
+    d[valid_row] = (g.lon_edges[iw[valid_row]] - plan.west_lon[b[valid_row],
+                                                                 row[valid_row]]) % 360.0
+    main = valid_row & (np.minimum(d, 360.0 - d) < 1e-6)
+    other = (west_island >= 0) & ~main
+    bc_runs = np.flatnonzero(main | other)
+    basin_slot = np.where(main[bc_runs], slot[bc_runs], -1)
+    sel = other[bc_runs]
+    target = west_island[bc_runs[sel]] * ny + row[bc_runs[sel]]
+    island_sum = sp.csr_matrix((np.ones(target.size), (target, np.flatnonzero(sel))),
+                               shape=(n_isl * ny, bc_runs.size))
+    island_seen = np.zeros(n_isl * ny, dtype=bool)
+    island_seen[target] = True
+    return _RunTable(const_runs, const_island, chain, across_cells, const_cells, const_of_cell,
+                     west[bc_runs], west_island[bc_runs], basin_slot, island_sum, island_seen,
+                     affected)
 
 
-def _constants_kernel(psi, v, island_psi, transport, *, table, cells, dx_half, n_basins):
-    """Add island and passage constants to the scanned streamfunction; boundary currents."""
+def _constants_kernel(tx, ty, psi, v, transport, *, lines, scale, table, dx_half, water,
+                      periodic, prepared, fill_gaps, n_basins):
+    """Island transports from the rule, then the island and passage constants added to the
+    scanned streamfunction, and the boundary currents; one pass for every field.
+
+    ``prepared``: the stress is already NaN outside the water and gap-filled as ``fill_gaps``
+    asks (the filled stress of the integral).
+    """
     shape = psi.shape
     ny, nx = shape[-2:]
-    P = np.asarray(psi, dtype=np.float64).reshape(-1, ny * nx)
-    V = np.asarray(v, dtype=np.float64).reshape(-1, ny * nx)
-    I = np.asarray(island_psi, dtype=np.float64).reshape(P.shape[0], -1)
-    n_isl = I.shape[1]
-    off = np.zeros((P.shape[0], table.lengths.size))
-    isl = table.kind == 1
-    off[:, isl] = I[:, table.source[isl]]
-    face = P - V * dx_half  # value at each cell's western face, before the constants
-    for r in table.order:
-        q = table.across[r]
-        off[:, r] = face[:, q] + off[:, table.source[r]]
-    field = np.zeros_like(P)
-    field[:, cells] = np.repeat(off, table.lengths, axis=1)
-    out = P + field
+    k = int(np.prod(shape[:-2], dtype=np.int64))
+    tx = np.asarray(tx, dtype=np.float64).reshape(k, ny, nx)
+    ty = np.asarray(ty, dtype=np.float64).reshape(k, ny, nx)
+    if not prepared and scale.size:
+        tx, ty = _prepare(tx, ty, water=water, fill_gaps=fill_gaps, periodic=periodic)
+    n_isl = scale.size
+    if n_isl:
+        circ = _circulation(tx, ty, lines, periodic).reshape(k, n_isl, len(LEGS))
+        T = (circ * scale[:, None]).sum(axis=-1)
+    else:
+        T = np.zeros((k, 0))
+    island_psi = np.where(np.isnan(T), 0.0, -T)
+    P = np.asarray(psi, dtype=np.float64).reshape(k, ny * nx)
+    V = np.asarray(v, dtype=np.float64).reshape(k, ny * nx)
+    # Each chain adds the value at the western face of the cells across its passages, before
+    # any constant (the constants themselves are summed along the chain).
+    q = table.across_cells
+    face = P[:, q] - V[:, q] * dx_half[q]
+    Ipad = np.concatenate([island_psi, np.zeros((k, 1))], axis=1)  # column -1: no island
+    off = Ipad[:, table.const_island] + (table.chain @ face.T).T
+    # psi is the scan's own new array, used by nothing else: the constants go in in place,
+    # which saves a whole-grid allocation per field.
+    out = P if P.flags.writeable else P.copy()
+    out[:, table.const_cells] += off[:, table.const_of_cell]
     # Boundary currents: the western face of a run minus the constant of the land west of it.
-    wface = (out - V * dx_half)[:, table.west_cell]
-    Ipad = np.concatenate([I, np.zeros((I.shape[0], 1))], axis=1)  # column -1: no island
-    land = Ipad[:, table.west_island]
-    bc = wface - land
-    basin_bc = np.full((P.shape[0], n_basins * ny), np.nan)
+    w = table.bc_cells
+    bc = out[:, w] - V[:, w] * dx_half[w] - Ipad[:, table.bc_land]
+    basin_bc = np.full((k, n_basins * ny), np.nan)
     main = table.basin_slot >= 0
     basin_bc[:, table.basin_slot[main]] = bc[:, main]
     # Rows without constants or islands keep the exact return flow of the interior.
-    T = np.asarray(transport, dtype=np.float64).reshape(P.shape[0], n_basins * ny)
-    basin_bc = np.where(table.affected, basin_bc, -T)
-    island_bc = np.zeros((P.shape[0], max(n_isl, 1) * ny))
-    sel = (table.west_island >= 0) & ~main
-    np.add.at(island_bc, (slice(None), table.west_island[sel] * ny + table.row[sel]),
-              bc[:, sel])
-    seen = np.zeros(max(n_isl, 1) * ny, dtype=bool)
-    seen[table.west_island[sel] * ny + table.row[sel]] = True
-    island_bc[:, ~seen] = np.nan
+    Tb = np.asarray(transport, dtype=np.float64).reshape(k, n_basins * ny)
+    basin_bc = np.where(table.affected, basin_bc, -Tb)
+    island_bc = (table.island_sum @ bc.T).T
+    island_bc[:, ~table.island_seen] = np.nan
     lead = shape[:-2]
     return (out.reshape(shape), basin_bc.reshape(lead + (n_basins, ny)),
-            island_bc[:, : n_isl * ny].reshape(lead + (n_isl, ny)))
+            island_bc.reshape(lead + (n_isl, ny)), T.reshape(lead + (n_isl,)))
+
+
+def _island_setup(geo: LandGeometry, plan, equatorial_half_width):
+    """Paths (base variant only), their line integrals and the run table: grid, mask and
+    options alone decide them, so they are kept on the (cached) land geometry and a loop over
+    fields works them out once."""
+    cache = geo.__dict__.setdefault("_island_cache", {})
+    key = ("constants", id(plan), float(equatorial_half_width))
+    if key not in cache:
+        g = geo.grid
+        selection = default_islands(geo)
+        paths = (island_paths(geo, selection, equatorial_half_width, variants=_VARIANTS[:1])
+                 if selection else [])
+        lines = None
+        if paths:
+            Wx, Wy, _ = _stack(paths, *g.shape)
+            lines = line_integrals(Wx, Wy, geo.water, g.periodic)
+        cache[key] = (paths, lines, _run_table(plan, geo, paths))
+    return cache[key]
 
 
 def sverdrup_island_constants(tx, ty, psi, v, transport, *, geo: LandGeometry, plan, rho0,
-                              fill_gaps, equatorial_half_width):
+                              fill_gaps, equatorial_half_width, prepared=False):
     """The post-scan step of :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`.
 
     Each run of the westward integral that starts on the western coast of a large island
     (or of an island of :data:`EARTH_RULE_ISLANDS`) gets the island's constant from the rule;
     a run that starts on open water (the Indonesian dividing line, or the edge of a marginal
-    sea the Earth basins leave out) continues the streamfunction of the water east of it. Returns the new streamfunction, the boundary current against each
-    basin row's western coast (..., basin, lat), and a Dataset of the island variables on the
-    canonical grid (None without islands).
+    sea the Earth basins leave out) continues the streamfunction of the water east of it.
+
+    ``tx``, ``ty``: canonical SI stress; ``prepared``: already NaN outside the water and
+    gap-filled as ``fill_gaps`` asks. ``psi`` must be the scan's own array, which nothing else
+    reads: the constants are added to it in place. Returns the new streamfunction, the
+    boundary current against each basin row's western coast (..., basin, lat), and the island
+    variables (name -> Variable, canonical latitude order; None without islands).
     """
     lat, lon = geo.layout.lat_name, geo.layout.lon_name
-    # Paths, their weights and the run table depend on grid, mask and options alone: kept on
-    # the (cached) land geometry, so a loop over fields works them out once.
-    cache = geo.__dict__.setdefault("_island_cache", {})
-    key = ("paths", float(equatorial_half_width))
-    if key not in cache:
-        selection = default_islands(geo)
-        cache[key] = island_paths(geo, selection, equatorial_half_width) if selection else []
-    paths = cache[key]
-    if paths:
-        legs = rule_transport(tx, ty, paths, geo, rho0=rho0, fill_gaps=fill_gaps)
-        T = legs.isel(variant=0).sum("leg", skipna=False)
-        refused = xr.DataArray([bool(p.status & 48) for p in paths], dims="island")
-        T = T.where(~refused)
-        island_psi = (-T).fillna(0.0)
-    else:
-        island_psi = xr.DataArray(np.zeros((0,)), dims="island")
-    key = ("table", id(plan), float(equatorial_half_width))
-    if key not in cache:
-        cache[key] = _run_table(plan, geo, paths)
-    table = cache[key]
+    paths, lines, table = _island_setup(geo, plan, equatorial_half_width)
     n_isl = len(paths)
-    new_psi, basin_bc, island_bc = xr.apply_ufunc(
+    g = geo.grid
+    scale = np.zeros(0)
+    if paths:
+        has = np.array([p.weights[0] is not None for p in paths])
+        denom = np.where(has, rho0 * np.array([p.dfs[0] for p in paths]), np.nan)
+        scale = 1.0 / (denom * constants.SVERDRUP_IN_M3_S)
+    new_psi, basin_bc, island_bc, T = xr.apply_ufunc(
         _constants_kernel,
-        whole_fields(psi, (lat, lon)), whole_fields(v, (lat, lon)), island_psi, transport,
-        input_core_dims=[[lat, lon], [lat, lon], ["island"], ["basin", lat]],
-        output_core_dims=[[lat, lon], ["basin", lat], ["island", lat]],
+        whole_fields(tx, (lat, lon)), whole_fields(ty, (lat, lon)),
+        whole_fields(psi, (lat, lon)), whole_fields(v, (lat, lon)), transport,
+        input_core_dims=[[lat, lon]] * 4 + [["basin", lat]],
+        output_core_dims=[[lat, lon], ["basin", lat], ["island", lat], ["island"]],
         dask="parallelized",
-        output_dtypes=[np.float64] * 3,
+        output_dtypes=[np.float64] * 4,
         dask_gufunc_kwargs={"output_sizes": {"basin": len(geo.names), "island": n_isl}},
-        kwargs=dict(table=table, cells=plan.cells,
-                    dx_half=(0.5 * geo.grid.dx / constants.SVERDRUP_IN_M3_S).ravel(),
-                    n_basins=len(geo.names)),
+        kwargs=dict(lines=lines, scale=scale, table=table,
+                    dx_half=(0.5 * g.dx / constants.SVERDRUP_IN_M3_S).ravel(),
+                    water=geo.water, periodic=g.periodic, prepared=prepared,
+                    fill_gaps=fill_gaps, n_basins=len(geo.names)),
     )
     new_psi = new_psi.transpose(*psi.dims)
     if not paths:
         return new_psi, basin_bc, None
-    T_da = T
     status = np.array([p.status for p in paths], dtype=np.int8)
-    g = geo.grid
     names = np.array([p.name for p in paths], dtype=object)
-    extra = xr.Dataset(
-        {
-            "island_transport": T_da.assign_attrs(
-                **_TRANSPORT_ATTRS,
-                comment="see sverdrup_kit.island_rule; NaN where the rule is refused "
-                "(island_rule_status), and the island's constant is then zero"),
-            "island_boundary_current_transport": island_bc.assign_attrs(
-                long_name="western boundary current against the eastern coast of each island",
-                units=SV_UNITS,
-                comment="northward, per row: streamfunction at the western face of the water "
-                "east of the island minus the island's constant; NaN in rows where the island "
-                "has no such water. An island that is the western coast of a basin row (Australia "
-                "in the Pacific) has that current in boundary_current_transport instead"),
-            "island_rule_status": ("island", status, _STATUS_ATTRS),
-            "north_tip_lat": ("island", [g.lat_edges[p.rows[1] + 1] if not p.status & 32
-                                         else np.nan for p in paths],
-                              {"long_name": "latitude of the northern leg",
-                               "units": "degrees_north"}),
-            "south_tip_lat": ("island", [g.lat_edges[p.rows[0]] if not p.status & 32
-                                         else np.nan for p in paths],
-                              {"long_name": "latitude of the southern leg",
-                               "units": "degrees_north"}),
-        },
-        coords={"island": ("island", names, {"long_name": "island"})},
-    )
-    through = _passages(T_da, list(names)) if geo.earth else None
+    # Plain variables (canonical latitude order), joined to the result in one update.
+    extra = {
+        "island": xr.Variable("island", names, {"long_name": "island"}),
+        "island_transport": xr.Variable(T.dims, T.data, {
+            **_TRANSPORT_ATTRS,
+            "comment": "see sverdrup_kit.island_rule; NaN where the rule is refused "
+            "(island_rule_status), and the island's constant is then zero"}),
+        "island_boundary_current_transport": xr.Variable(island_bc.dims, island_bc.data, {
+            "long_name": "western boundary current against the eastern coast of each island",
+            "units": SV_UNITS,
+            "comment": "northward, per row: streamfunction at the western face of the water "
+            "east of the island minus the island's constant; NaN in rows where the island "
+            "has no such water. An island that is the western coast of a basin row (Australia "
+            "in the Pacific) has that current in boundary_current_transport instead"}),
+        "island_rule_status": xr.Variable("island", status, _STATUS_ATTRS),
+        "north_tip_lat": xr.Variable("island", [g.lat_edges[p.rows[1] + 1] if not p.status & 32
+                                                else np.nan for p in paths],
+                                     {"long_name": "latitude of the northern leg",
+                                      "units": "degrees_north"}),
+        "south_tip_lat": xr.Variable("island", [g.lat_edges[p.rows[0]] if not p.status & 32
+                                                else np.nan for p in paths],
+                                     {"long_name": "latitude of the southern leg",
+                                      "units": "degrees_north"}),
+    }
+    through = _passages(extra["island_transport"], list(names)) if geo.earth else None
     if through is not None:
-        extra["passage_transport"] = through
+        extra["passage_transport"] = through[0]
+        extra["passage"] = xr.Variable("passage", through[1])
     return new_psi, basin_bc, extra
 
 
 def add_island_variables(ds, basin_bc, islands, lat):
     """Put the island rule's results into a Sverdrup result (in the user's latitude order).
 
-    The new variables go in as plain variables on the result's own coordinates, so that the
-    coordinates keep their attributes.
+    ``islands``: name -> Variable from :func:`sverdrup_island_constants`. The new variables go
+    in as plain variables on the result's own coordinates, so that the coordinates keep their
+    attributes; all in one update of the result.
     """
     order = ds[lat].values
+    canonical = basin_bc[lat].values
+    take = None if np.array_equal(canonical, order) else matching_positions(canonical, order)
 
-    def on_ds(da):
-        if lat in da.dims:
-            da = da.assign_coords({lat: da[lat].values}).sel({lat: order})
-        return da.drop_vars([c for c in da.coords if c in (lat, "basin")]).variable
+    def on_ds(v):
+        return v.isel({lat: take}) if take is not None and lat in v.dims else v
 
     ds = ds.copy()
-    bc = basin_bc.transpose(*ds.boundary_current_transport.dims)
-    ds["boundary_current_transport"] = on_ds(bc).copy(deep=False)
-    ds["boundary_current_transport"].attrs = dict(
-        long_name="western boundary current against the western coast of the basin",
-        units=SV_UNITS,
-        comment="northward: streamfunction at the western face of the westernmost interior "
+    bc = on_ds(basin_bc.transpose(*ds.boundary_current_transport.dims).variable)
+    bc = xr.Variable(bc.dims, bc.data, {
+        "long_name": "western boundary current against the western coast of the basin",
+        "units": SV_UNITS,
+        "comment": "northward: streamfunction at the western face of the westernmost interior "
         "cell minus the constant of the western coast (zero on a continent). With islands "
         "it is minus the interior transport plus the constant of the row's eastern coast "
         "minus the island boundary currents (island_boundary_current_transport); NaN in "
-        "rows left empty (row_status)")
+        "rows left empty (row_status)",
+    })
+    new = {"boundary_current_transport": bc}
     ds.sverdrup_streamfunction.attrs["comment"] = (
         ds.sverdrup_streamfunction.attrs["comment"].replace(
             "restarts at zero west of each large island", "west of a large island it starts "
             "from the island's constant from Godfrey's island rule (island_transport)"))
     if islands is not None:
-        ds = ds.assign_coords(island=islands["island"])
-        for name, da in islands.data_vars.items():
-            lead = [d for d in da.dims if d not in ("island", "passage", lat)]
-            core = [d for d in ("island", "passage", lat) if d in da.dims]
-            ds[name] = on_ds(da.transpose(*lead, *core))
-        if "passage" in islands.coords:
-            ds = ds.assign_coords(passage=islands["passage"])
+        new.update({name: on_ds(v) for name, v in islands.items()})
+    ds.update(new)
     ds.attrs["island_rule"] = ("Godfrey (1989): island constants of the streamfunction from "
                                "the island rule, applied island by island")
     return ds

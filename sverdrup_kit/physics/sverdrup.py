@@ -448,8 +448,10 @@ def sverdrup_transport(
     basin_bc = islands = None
     if island_rule:
         geo = _land_geometry_cached(geometry, lay)
+        # With gaps filled, the rule takes the stress the curl took (filled once).
         psi, basin_bc, islands = sverdrup_island_constants(
-            tx, ty, psi, v, transport, geo=geo, plan=plan, rho0=rho0, fill_gaps=fill_gaps,
+            fx if fill_gaps else tx, fy if fill_gaps else ty, psi, v, transport, geo=geo,
+            plan=plan, rho0=rho0, fill_gaps=fill_gaps, prepared=fill_gaps,
             equatorial_half_width=equatorial_half_width)
     settings = _Settings(rho0, equatorial_half_width, island_min_area_km2, continent_min_area_km2,
                          min_width_km, fill_gaps,

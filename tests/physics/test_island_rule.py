@@ -111,10 +111,37 @@ def test_the_rule_does_not_depend_on_where_the_closed_path_starts(world):
     fy = np.nan_to_num(rule_module._carry_along(np.where(geo.water, ty.values, np.nan), -1, True))
     base = (wx @ fx.ravel() + wy @ fy.ravel()).sum()
     for k in (1, 17, len(pts) // 2):
-        p2 = pts[k:] + pts[1:k + 1]
-        l2 = legs[k:] + legs[:k]
+        p2 = np.concatenate([pts[k:], pts[1:k + 1]])
+        l2 = np.concatenate([legs[k:], legs[:k]])
         wx2, wy2 = rule_module._weights(geo, p2, l2)
         assert (wx2 @ fx.ravel() + wy2 @ fy.ravel()).sum() == pytest.approx(base, rel=1e-12)
+
+
+def test_precomputed_line_integrals_agree_with_carrying_the_stress_along_each_row(world):
+    # Two statements of the same sum (derived): the weights moved once onto the nearest water
+    # cell of each row (line_integrals) against the stress carried along each row field by
+    # field (_carry_along) and the weights of every cell. A field with a cell of a path's row
+    # left without stress takes the carried path; both fields are checked in one call.
+    tx, ty, ocean = world
+    geo = rule_module.land_geometry(
+        tx, ty, ocean_mask=ocean, basins=None, island_min_area_km2=1e5,
+        continent_min_area_km2=5e6, land_connectivity=4, land_classes=None,
+        equatorial_half_width=3.0, radius=R, omega=OMEGA)
+    paths = rule_module.island_paths(geo, rule_module.default_islands(geo), 3.0)
+    wx, wy, _ = rule_module._stack(paths, *geo.water.shape)
+    lines = rule_module.line_integrals(wx, wy, geo.water, True)
+    fx, fy = rule_module._prepare(tx.values, ty.values, water=geo.water, fill_gaps=True,
+                                  periodic=True)
+    gap = np.unravel_index(lines.source[len(lines.source) // 2], fx.shape)
+    fx2, fy2 = fx.copy(), fy.copy()
+    fx2[gap], fy2[gap] = np.nan, np.nan
+    out = rule_module._circulation(np.stack([fx, fx2]), np.stack([fy, fy2]), lines, True)
+    for k, (a, b) in enumerate([(fx, fy), (fx2, fy2)]):
+        ca = np.nan_to_num(rule_module._carry_along(a, -1, True)).ravel()
+        cb = np.nan_to_num(rule_module._carry_along(b, -1, True)).ravel()
+        ref = wx @ ca + wy @ cb
+        np.testing.assert_allclose(out[k], ref, rtol=1e-12, atol=1e-12 * np.abs(ref).max())
+    assert not np.allclose(out[0], out[1])  # the gap is on a path
 
 
 # ------------------------------------------------------------------------------------------
