@@ -1,9 +1,11 @@
 r"""Sverdrup transport integrated westward from eastern coasts, basin by basin.
 
 The geometry of the integral (basins, islands, coasts, marginal seas, rows left empty) comes
-from :mod:`sverdrup_kit.geometry.basins` and is worked out once per call; each time step costs a gap
-fill, the curl (:func:`~sverdrup_kit.physics.operators.curl_on_sphere`) and the scan
-(:mod:`sverdrup_kit._compiled.scan`).
+from :mod:`sverdrup_kit.geometry` and is cached per grid, mask and options
+(:mod:`sverdrup_kit.geometry.integral`); each time step costs one pass of compiled kernels: the
+gap fill, the coast-aware curl (the kernel of
+:func:`~sverdrup_kit.physics.operators.wind_stress_curl`), V and the westward scan
+(:mod:`sverdrup_kit._compiled.dispatch`).
 """
 
 from __future__ import annotations
@@ -14,8 +16,8 @@ import numpy as np
 import xarray as xr
 
 from .. import _validate, constants
-from .._apply import _bare, apply_grid_kernel, whole_fields
-from .._compiled.dispatch import coverage, fill_pair, westward_scan
+from .._apply import _bare, whole_fields
+from .._compiled.dispatch import coverage, curl_kernel, fill_pair, westward_scan
 from .._compiled.scan import gyre_boundaries, sum_groups
 from ..geometry.basins import (
     CELL_CLASS,
@@ -42,7 +44,6 @@ from ..geometry.curvilinear import is_curvilinear
 from ..geometry.grid import SphericalGrid
 from .ekman import DEFAULT_EQUATORIAL_HALF_WIDTH
 from .island_rule import add_island_variables, land_geometry_from, sverdrup_island_constants
-from .operators import curl_on_sphere
 
 __all__ = ["sverdrup_transport"]
 
@@ -68,17 +69,13 @@ def _land_geometry_cached(geometry, layout):
     return cache[key]
 
 
-def _fill_kernel(tx, ty, *, target, keep_missing, periodic):
-    """Fill stress gaps inside ``target`` (both components missing where either is)."""
-    return fill_pair(tx, ty, target=target, periodic=periodic, keep_missing=keep_missing)
-
-
-def _integral_kernel(curl, tx, ty, *, pole, inv_rb, dx_sv, plan, n_basins):
-    """Curl with pole rows masked, V, the westward scan (in Sv), and each row's observed
-    coverage."""
-    curl = np.asarray(curl, dtype=np.float64)
-    # The curl is this call's own intermediate, consumed here alone: its pole rows are masked
-    # in place rather than in a copy of the whole field.
+def _field_kernel(tx, ty, *, target, keep_missing, periodic, phi, lam, radius, pole, inv_rb,
+                  dx_sv, plan, n_basins):
+    """One field's whole pass: gap fill (both components missing where either is), the curl
+    with pole rows masked, V, the westward scan (in Sv), and each row's observed coverage."""
+    fx, fy = fill_pair(tx, ty, target=target, periodic=periodic, keep_missing=keep_missing)
+    curl = curl_kernel(fx, fy, phi, lam, periodic=periodic, radius=radius)
+    # Cells touching the pole: 1/cos(phi) makes their curl spikes, not data.
     curl[..., pole, :] = np.nan
     v = curl * inv_rb[:, None]
     # dx in units of 1e6 m2: the scan returns psi and run totals in Sv, no pass to rescale.
@@ -88,7 +85,7 @@ def _integral_kernel(curl, tx, ty, *, pole, inv_rb, dx_sv, plan, n_basins):
     t = t.reshape(t.shape[:-1] + (n_basins, ny))
     obs = coverage(tx, ty, plan.count_cells, plan.count_starts, plan.count_slot, n_basins * ny)
     obs = obs.reshape(obs.shape[:-1] + (n_basins, ny))
-    return curl, v, psi, t, obs
+    return fx, fy, curl, v, psi, t, obs
 
 
 def _boundaries_kernel(t, valid, *, lat, max_gyre_boundaries, threshold):
@@ -397,28 +394,21 @@ def sverdrup_transport(
     pole[0] = grid.lat_edges[0] <= -90.0 + 1e-9
     pole[-1] = grid.lat_edges[-1] >= 90.0 - 1e-9
 
-    # Per time step: fill, curl, V, scan.
+    # Per time step, one pass: fill, curl, V, scan, and the coverage of each row by observed
+    # stress. V is missing in the equatorial band and on the pole rows.
     keep_missing = (cls == OCEAN) if not fill_gaps else None
-    fx, fy = apply_grid_kernel(
-        _fill_kernel, tx, ty, dims=(lat, lon), n_out=2,
-        kwargs=dict(target=water, keep_missing=keep_missing, periodic=grid.periodic),
-    )
-    curl = curl_on_sphere(fx, fy, grid=grid, names=("taux", "tauy"))
-    # Cells touching the pole: 1/cos(phi) makes their curl spikes, not data. V is also
-    # missing in the equatorial band. Both, the scan and the coverage of each row by observed
-    # stress run in one kernel, one pass per field.
     inv_rb = np.where(band | pole, np.nan, 1.0 / (rho0 * grid.beta))
-    curl, v, psi, transport, observed = xr.apply_ufunc(
-        _integral_kernel,
-        whole_fields(curl, (lat, lon)), whole_fields(tx, (lat, lon)),
-        whole_fields(ty, (lat, lon)),
-        input_core_dims=[[lat, lon]] * 3,
-        output_core_dims=[[lat, lon], [lat, lon], [lat, lon], ["basin", lat], ["basin", lat]],
+    fx, fy, curl, v, psi, transport, observed = xr.apply_ufunc(
+        _field_kernel,
+        whole_fields(tx, (lat, lon)), whole_fields(ty, (lat, lon)),
+        input_core_dims=[[lat, lon]] * 2,
+        output_core_dims=[[lat, lon]] * 5 + [["basin", lat]] * 2,
         dask="parallelized",
-        output_dtypes=[np.float64] * 5,
+        output_dtypes=[np.float64] * 7,
         dask_gufunc_kwargs={"output_sizes": {"basin": nb}},
-        kwargs=dict(pole=pole, inv_rb=inv_rb, dx_sv=grid.dx / constants.SVERDRUP_IN_M3_S,
-                    plan=plan, n_basins=nb),
+        kwargs=dict(target=water, keep_missing=keep_missing, periodic=grid.periodic,
+                    phi=grid.phi, lam=grid.lam, radius=grid.radius, pole=pole, inv_rb=inv_rb,
+                    dx_sv=grid.dx / constants.SVERDRUP_IN_M3_S, plan=plan, n_basins=nb),
         # Keep the coordinates' attributes; the variables get their own in _assemble.
         keep_attrs=True,
     )
