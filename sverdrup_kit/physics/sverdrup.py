@@ -413,7 +413,8 @@ def sverdrup_transport(
         keep_attrs=True,
     )
     order = [d for d in tx.dims]
-    curl, v, psi, transport, observed = (_bare(x) for x in (curl, v, psi, transport, observed))
+    fx, fy, curl, v, psi, transport, observed = (
+        _bare(x) for x in (fx, fy, curl, v, psi, transport, observed))
     curl, v, psi = (x.transpose(*order) for x in (curl, v, psi))
     lead = [d for d in order if d not in (lat, lon)]
     transport = transport.transpose(*lead, "basin", lat)
