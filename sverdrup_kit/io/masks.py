@@ -208,10 +208,10 @@ def relief_field(source, *, variable: str | None = None, kind: str | None = None
     units = da.attrs.get("units")
     if kind not in ("relief", "depth") or (units is not None and not _is_length(units)):
         raise InputError(
-            f"{argname}: expected surface height or sea-floor depth in m, found variable "
-            f"'{da.name}' of {what} (standard_name {da.attrs.get('standard_name')!r}, units "
-            f"{units!r}{f', read as {kind}' if kind else ''}). Fix: pass a relief file such as "
-            f"ETOPO, or name its height variable ({argname}_variable)."
+            f"{argname}: expected surface height or sea-floor depth in m, found {what} "
+            f"(standard_name {da.attrs.get('standard_name')!r}, units {units!r}"
+            f"{f', read as {kind}' if kind else ''}). Fix: pass a relief file such as ETOPO, "
+            f"or name its height variable with {argname}_variable."
         )
     lat, lon = find_latlon(da, argname=argname)
     extra = [d for d in da.dims if d not in (lat, lon)]
