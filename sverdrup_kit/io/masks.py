@@ -181,13 +181,10 @@ def relief_field(source, *, variable: str | None = None, kind: str | None = None
     source : str, os.PathLike, xarray.Dataset or xarray.DataArray (lat, lon)
         A relief (height, m, up) or sea-floor depth (m, positive down) field on a regular
         latitude-longitude grid, or a file holding one.
-    variable : str, optional
-        Name of the field in a file or Dataset that holds several.
+    variable, argname
+        As in :func:`ocean_fraction`.
     kind : {"relief", "depth"}, optional
-        What the field holds, when its ``standard_name``, name or units do not say
-        (see :data:`MASK_KINDS`).
-    argname : str, optional
-        Name of ``source`` in error messages.
+        What the field holds, when its ``standard_name``, name or units do not say.
 
     Returns
     -------
