@@ -147,6 +147,7 @@ def _parser() -> argparse.ArgumentParser:
     d.add_argument("--water-density", type=float, default=None,
                    help="reference sea-water density rho0, kg m-3 (default 1025)")
     _mask_options(d)
+    _below_surface_options(d)
     d.add_argument("--stress-sign", choices=("downward", "upward"), default=None,
                    help="with --input-kind stress: the file holds the stress of the air on the "
                         "sea (downward, the usual wind stress) or of the sea on the air "
@@ -209,6 +210,74 @@ def _mask_options(p) -> None:
     p.add_argument("--ocean-threshold", type=_threshold_arg, default=0.5, metavar="FRACTION",
                    help="a wind cell is ocean when at least this fraction of it is ocean "
                         "(default 0.5)")
+
+
+def _depth_arg(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        value = float("nan")
+    if not 0.0 < value < 11000.0:
+        raise argparse.ArgumentTypeError(
+            f"expected a depth in m between 0 and 11000, found {text!r}. Fix: e.g. "
+            "--shelf-depth 1000")
+    return value
+
+
+def _below_surface_options(p) -> None:
+    g = p.add_argument_group("the ocean below the surface")
+    g.add_argument("--hydrography", metavar="FILE", default=None,
+                   help="temperature and salinity climatology (NetCDF, any grid and depth "
+                        "levels): the first baroclinic mode speed of each water column sets the "
+                        "Rossby-wave crossing times. Default: a documented default "
+                        "stratification, the same everywhere")
+    g.add_argument("--temperature-var", metavar="NAME", default=None,
+                   help="in-situ temperature variable of --hydrography, if its standard_name "
+                        "or name and units do not say")
+    g.add_argument("--salinity-var", metavar="NAME", default=None,
+                   help="practical salinity variable of --hydrography, if its standard_name "
+                        "or name and units do not say")
+    g.add_argument("--relief", metavar="FILE", default=None,
+                   help="relief (height, m) or sea-floor depth file on any regular grid: rows "
+                        "whose ocean is mostly shallower than --shelf-depth get the caution "
+                        "over_shelf (row_status 9)")
+    g.add_argument("--relief-var", metavar="NAME", default=None,
+                   help="variable of the relief file, if it holds several")
+    g.add_argument("--shelf-depth", type=_depth_arg, default=None, metavar="M",
+                   help="with --relief: depth in m above which a row counts as over a shelf "
+                        "(default 1000)")
+
+
+def _below_surface_inputs(args) -> dict:
+    """T/S and relief of the options above, checked before any work; diagnose's keywords."""
+    kw = {}
+    for option, needs in (("--temperature-var", "hydrography"), ("--salinity-var", "hydrography"),
+                          ("--relief-var", "relief"), ("--shelf-depth", "relief")):
+        if getattr(args, option[2:].replace("-", "_")) is not None and getattr(args, needs) is None:
+            raise CommandError(f"{option}: only applies with --{needs} FILE, found no --{needs}. "
+                               f"Fix: add --{needs} FILE, or drop {option}.")
+    renames = (("temperature_variable", "--temperature-var"), ("salinity_variable",
+               "--salinity-var"), ("hydrography", "--hydrography"),
+               ("relief_variable", "--relief-var"), ("relief", "--relief"))
+    try:
+        if args.hydrography is not None:
+            from .ocean.hydrography import open_ts_climatology
+
+            kw["hydrography"] = open_ts_climatology(
+                args.hydrography, temperature_variable=args.temperature_var,
+                salinity_variable=args.salinity_var)
+        if args.relief is not None:
+            from .io.masks import relief_field
+
+            _existing(args.relief, "--relief")
+            kw["relief"] = relief_field(args.relief, variable=args.relief_var)
+            kw["shelf_depth_m"] = 1000.0 if args.shelf_depth is None else args.shelf_depth
+    except (ValueError, TypeError, OSError) as err:
+        text = str(err).strip().splitlines()[0]
+        for name, option in renames:
+            text = text.replace(f"{name}:", f"{option}:").replace(f"with {name}", f"with {option}")
+        raise CommandError(text) from None
+    return kw
 
 
 def _spread_parser(sub, drag_laws) -> None:
@@ -408,7 +477,27 @@ def _summary(res, say, lats=None) -> None:
             g = g[np.isfinite(g)]
             if g.size:
                 say(f"  gyre boundaries in {b}: " + ", ".join(latitude_label(x) for x in g))
+    _shelf_summary(res, say)
     _adjustment_summary(res, say, lats)
+
+
+def _spans(lat, ok) -> list[str]:
+    """Runs of True in ``ok`` along ``lat`` as 'from to' labels."""
+    edges = np.flatnonzero(np.diff(np.concatenate([[0], ok.astype(int), [0]])))
+    return [f"{latitude_label(lat[i])} to {latitude_label(lat[j - 1])}"
+            for i, j in zip(edges[::2], edges[1::2])]
+
+
+def _shelf_summary(res, say) -> None:
+    """The rows cautioned over shelves (row_status 9), per basin."""
+    if "shelf_depth_m" not in res.attrs:
+        return
+    say(f"rows cautioned over shelves (over_shelf: most of the row shallower than "
+        f"{res.attrs['shelf_depth_m']:g} m; relief: {res.attrs.get('relief', 'given')}):")
+    shelf = res["row_status"] == 9
+    for b in shelf["basin"].values:
+        spans = _spans(shelf["lat"].values, shelf.sel(basin=b).values)
+        say(f"  {str(b):<16s} " + ("; ".join(spans) if spans else "none"))
 
 
 def _adjustment_summary(res, say, lats) -> None:
@@ -416,6 +505,9 @@ def _adjustment_summary(res, say, lats) -> None:
     if "basin_crossing_time" not in res:
         return
     years = res["basin_crossing_time"] / 365.25
+    if "stratification" in res.attrs:
+        say(f"stratification: {res.attrs['stratification']}")
+    _first_mode_summary(res, say, lats)
     say("long Rossby-wave crossing time from the eastern coast to the western boundary (years):")
     for b in years["basin"].values:
         row = years.sel(basin=b)
@@ -437,22 +529,35 @@ def _adjustment_summary(res, say, lats) -> None:
         ok = ((flags.sel(basin=b) == 1) & valid.sel(basin=b)).values
         if not valid.sel(basin=b).any():
             continue
-        lat = flags["lat"].values
-        edges = np.flatnonzero(np.diff(np.concatenate([[0], ok.astype(int), [0]])))
-        spans = [f"{latitude_label(lat[i])} to {latitude_label(lat[j - 1])}"
-                 for i, j in zip(edges[::2], edges[1::2])]
+        spans = _spans(flags["lat"].values, ok)
         say(f"  {str(b):<16s} " + ("; ".join(spans) if spans else "none"))
+
+
+def _first_mode_summary(res, say, lats) -> None:
+    """Median first-mode speed c1 over each basin's counted cells at the summary latitudes."""
+    if "first_mode_gravity_wave_speed" not in res or "basin_id" not in res:
+        return
+    c1 = res["first_mode_gravity_wave_speed"]
+    say("first baroclinic gravity-wave speed c1 (m/s), median along each basin row:")
+    for k, b in enumerate(res["basin"].values):
+        row = c1.where(res["basin_id"] == k).median("lon")
+        vals = [float(row.sel(lat=la, method="nearest")) if row.lat.min() <= la <= row.lat.max()
+                else np.nan for la in lats]
+        if np.isfinite(vals).any():
+            say(f"  {str(b):<16s} " + "".join(f"{v:7.1f}" if np.isfinite(v) else "      -"
+                                               for v in vals))
 
 
 def _run_diagnose(args) -> int:
     say = (lambda *a: None) if args.quiet else (lambda *a: print(*a, flush=True))
     # --- output folder: checked before any computation (see sverdrup_kit._outfolder) ---
     local = [] if args.synthetic else [s for s in args.source if "://" not in str(s)]
+    below = _below_surface_inputs(args)
     folder = OutputFolder(args.out, overwrite=args.overwrite, inputs=local)
     folder.prepare()
     restore = _exit_on_sigterm()
     try:
-        return _diagnose_into(args, folder, say)
+        return _diagnose_into(args, folder, say, below)
     except BaseException:
         folder.abandon()
         raise
@@ -473,7 +578,7 @@ def _exit_on_sigterm():
     return lambda: signal.signal(signal.SIGTERM, before)
 
 
-def _diagnose_into(args, folder, say) -> int:
+def _diagnose_into(args, folder, say, below=None) -> int:
     from . import __version__
     from .io.writers import write_netcdf
     from .pipeline import diagnose
@@ -497,8 +602,25 @@ def _diagnose_into(args, folder, say) -> int:
         basins = world_basins(winds)
     if not args.synthetic:
         kw["ocean_mask"] = _resolve_mask(args, winds, say)
+    below = dict(below or {})
+    ts = below.pop("hydrography", None)
+    if ts is not None:
+        from .physics.adjustment import first_mode_speed_from_ts
+
+        say(f"first-mode speed from {ts.attrs['source']}")
+        from .pipeline import first_mode_speed_on
+
+        c1 = first_mode_speed_from_ts(ts["temperature"], ts["salinity"],
+                                      depth_dim=ts.attrs["depth_dim"]).assign_attrs(
+            source="first-mode speed of each water column from the " + ts.attrs["source"]
+            + " (TEOS-10 through gsw)")
+        kw["first_mode_speed"] = first_mode_speed_on(c1, winds,
+                                                     column_depth=ts["column_depth"])
+    if "relief" in below:
+        say(f"relief: {below['relief'].attrs['source']}; rows mostly shallower than "
+            f"{below['shelf_depth_m']:g} m get the caution over_shelf")
     say("computing stress, curl, Ekman and Sverdrup transports")
-    res = diagnose(winds, drag_law=args.drag_law, basins=basins, **kw)
+    res = diagnose(winds, drag_law=args.drag_law, basins=basins, **kw, **below)
     from .progress import progress
 
     with progress(enabled=not (args.no_progress or args.quiet)):

@@ -19,7 +19,7 @@ from .physics.stress import wind_stress
 from .physics.adjustment import adjustment_flags, averaging_period, rossby_adjustment
 from .physics.sverdrup import sverdrup_transport
 
-__all__ = ["diagnose"]
+__all__ = ["OPEN_OCEAN_DEPTH", "diagnose", "first_mode_speed_on"]
 
 
 def _stress_from(winds: xr.Dataset, *, drag_law, air_density, use_wind_speed) -> xr.Dataset:
@@ -120,6 +120,86 @@ def _on_grid(mask: xr.DataArray, field: xr.DataArray) -> xr.DataArray:
     return out.assign_coords({flat: field[flat].values, flon: field[flon].values})
 
 
+#: Water columns at least this deep (m) set the first-mode speed of a cell of the stress grid
+#: when it has any: over a shelf the flat-bottom first mode is slow (a few tens of cm/s) and a
+#: single shelf cell would add decades to a basin's crossing time, while the wave that crosses
+#: the basin travels in the deep water off the shelf. Shelves are shallower than about 200-500 m
+#: and the open ocean deeper than about 3000 m (common practice); 1000 m also matches the
+#: default shelf_depth_m of sverdrup_transport.
+OPEN_OCEAN_DEPTH = 1000.0
+
+
+def first_mode_speed_on(first_mode_speed: xr.DataArray, like, *, column_depth=None,
+                        open_ocean_depth: float = OPEN_OCEAN_DEPTH) -> xr.DataArray:
+    """First-mode speed of water columns on a grid of their own, on the grid of ``like``.
+
+    Parameters
+    ----------
+    first_mode_speed : xarray.DataArray (lat, lon)
+        :math:`c_1` in m s-1 on a regular latitude-longitude grid, NaN on land (e.g. from
+        :func:`~sverdrup_kit.physics.adjustment.first_mode_speed_from_ts`).
+    like : xarray.Dataset or xarray.DataArray
+        Anything with the target grid (the winds or the stress).
+    column_depth : xarray.DataArray (lat, lon), optional
+        Depth in m of each water column of ``first_mode_speed`` (its deepest level with data,
+        as ``column_depth`` of :func:`~sverdrup_kit.ocean.hydrography.open_ts_climatology`).
+        When given, a target cell takes the mean over its columns at least
+        ``open_ocean_depth`` deep; a cell with none takes the value of the nearest such cells
+        through the ocean (mean of face neighbours, pass after pass), and a cell of a sea with
+        no deep column at all the mean of all its columns.
+    open_ocean_depth : float, optional
+        m, see :data:`OPEN_OCEAN_DEPTH`.
+
+    Returns
+    -------
+    xarray.DataArray (lat, lon)
+        ``first_mode_gravity_wave_speed`` in m s-1 on the grid, order and coordinates of
+        ``like``; NaN where no column lies under a cell. The ``source`` attribute of the
+        input, with the method added.
+
+    Notes
+    -----
+    Each average is the area-weighted mean over the overlap of target and source cells
+    (first-order conservative remapping, Jones 1999, Mon. Weather Rev. 127, 2204-2210;
+    :func:`~sverdrup_kit.geometry.regrid.area_weighted_average`), over columns with data.
+    """
+    from ._compiled.dispatch import fill_from_neighbours
+    from .geometry.regrid import area_weighted_average
+
+    c1 = first_mode_speed
+    source = str(c1.attrs.get("source", "first-mode speed field as given"))
+    every = area_weighted_average(c1, like, min_coverage=1e-9, argname="first_mode_speed")
+    if column_depth is None:
+        return every.assign_attrs(source=source + "; averaged by area onto the stress grid")
+    deep = area_weighted_average(c1.where(column_depth >= open_ocean_depth), like,
+                                 min_coverage=1e-9, argname="first_mode_speed")
+    every_v = np.asarray(every.values, dtype=np.float64)
+    filled = fill_from_neighbours(np.asarray(deep.values, dtype=np.float64),
+                                  target=np.isfinite(every_v), periodic=_masks.is_global(like))
+    out = every.copy(data=np.where(np.isfinite(filled), filled, every_v))
+    return out.assign_attrs(
+        source=source + f"; averaged by area onto the stress grid over columns at least "
+        f"{open_ocean_depth:g} m deep, cells over shallower water filled from the nearest deep "
+        "ones")
+
+
+def _first_mode_on(first_mode_speed, like: xr.DataArray):
+    """c1 for rossby_adjustment on the grid of ``like``, and one line saying where it came from."""
+    from .physics.adjustment import DEFAULT_STRATIFICATION
+
+    if first_mode_speed is None:
+        d = DEFAULT_STRATIFICATION
+        return None, (f"default stratification: N = {d['n0']:g} s-1 exp(-depth / "
+                      f"{d['e_folding_depth']:g} m), flat bottom at {d['bottom_depth']:g} m "
+                      "(Garrett & Munk 1972), the same in every column")
+    if not isinstance(first_mode_speed, xr.DataArray):
+        return first_mode_speed, f"constant first-mode speed {first_mode_speed!r} m s-1"
+    if not _same_grid(first_mode_speed, like):
+        first_mode_speed = first_mode_speed_on(first_mode_speed, like)
+    return first_mode_speed, str(first_mode_speed.attrs.get("source",
+                                                             "first-mode speed field as given"))
+
+
 def diagnose(
     winds: xr.Dataset,
     *,
@@ -133,6 +213,8 @@ def diagnose(
     rho0: float = constants.RHO0,
     equatorial_half_width: float = DEFAULT_EQUATORIAL_HALF_WIDTH,
     first_mode_speed=None,
+    relief=None,
+    shelf_depth_m: float = 1000.0,
 ) -> xr.Dataset:
     """Run the data path on a wind (or stress) climatology.
 
@@ -162,7 +244,17 @@ def diagnose(
     first_mode_speed : None, float or xarray.DataArray (lat, lon), optional
         First baroclinic gravity-wave speed in m s-1 for the Rossby-wave adjustment times,
         passed to :func:`~sverdrup_kit.physics.adjustment.rossby_adjustment` (default: its
-        documented default stratification).
+        documented default stratification). A field on a regular grid of its own (e.g.
+        :func:`~sverdrup_kit.physics.adjustment.first_mode_speed_from_ts` of a T/S
+        climatology) is averaged by area onto the stress grid over the cells where it has
+        values; its ``source`` attribute, when set, is named in the ``stratification``
+        attribute of the result.
+    relief, shelf_depth_m
+        Passed to :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`: rows whose
+        counted ocean is mostly shallower than ``shelf_depth_m`` (m) get the caution
+        ``over_shelf`` (row_status 9). ``relief`` is a surface height in m on the stress grid
+        or on a regular grid of its own (:func:`~sverdrup_kit.io.masks.relief_field` reads
+        one from a file).
 
     Returns
     -------
@@ -219,17 +311,20 @@ def diagnose(
                 f"mean over the {stress.sizes['time']} time steps of the input, each with data; "
                 "cells missing in some steps are averaged over the steps they have"
             )
+    shelf = dict(relief=relief, shelf_depth_m=shelf_depth_m)
     sv = sverdrup_transport(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
-                  equatorial_half_width=equatorial_half_width)
+                  equatorial_half_width=equatorial_half_width, **shelf)
     ek = ekman(mean["taux"], mean["tauy"], rho0=rho0, equatorial_half_width=equatorial_half_width)
-    adj = rossby_adjustment(sv, first_mode_speed=first_mode_speed)
+    c1, stratification = _first_mode_on(first_mode_speed, mean["taux"])
+    adj = rossby_adjustment(sv, first_mode_speed=c1)
+    adj["first_mode_gravity_wave_speed"].attrs["comment"] = stratification
     out = xr.merge([mean, ek, sv, adj], compat="override", combine_attrs="drop_conflicts")
     dated = has_time and stress.sizes["time"] > 1 and _dated(stress["time"])
     out["sverdrup_adjusted"] = adjustment_flags(adj["basin_crossing_time"],
                                                 time=stress["time"] if dated else None)
     if has_time:
         monthly = sverdrup_transport(stress["taux"], stress["tauy"], basins=basins, ocean_mask=ocean_mask,
-                           rho0=rho0, equatorial_half_width=equatorial_half_width)
+                           rho0=rho0, equatorial_half_width=equatorial_half_width, **shelf)
         out["interior_transport_by_time"] = monthly["interior_transport"].assign_attrs(
             monthly["interior_transport"].attrs,
             long_name="Sverdrup interior transport of each time step",
@@ -243,6 +338,11 @@ def diagnose(
         equatorial_half_width=equatorial_half_width,
         source_winds=str(winds.attrs.get("source", winds.attrs.get("title", "unknown"))),
         ocean_mask=note,
+        stratification=stratification,
     )
+    if relief is not None:
+        out.attrs.update(relief=str(relief.attrs.get("source", f"DataArray '{relief.name}'"))
+                         if isinstance(relief, xr.DataArray) else "given",
+                         shelf_depth_m=float(shelf_depth_m))
     return out
 

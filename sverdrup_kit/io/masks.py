@@ -26,7 +26,7 @@ from ..errors import GridError, InputError
 from ..geometry.coords import find_latlon, grid_layout
 from ..geometry.regrid import area_weighted_average, coverage
 
-__all__ = ["EARTH_MASK_FILE", "MASK_KINDS", "ocean_fraction", "ocean_mask"]
+__all__ = ["EARTH_MASK_FILE", "MASK_KINDS", "ocean_fraction", "ocean_mask", "relief_field"]
 
 EARTH_MASK_FILE = "earth_ocean_fraction.nc"
 EARTH = "earth"
@@ -166,6 +166,65 @@ def ocean_mask(source, like, *, variable: str | None = None, threshold: float = 
                   + frac.attrs["method"],
         "threshold": float(threshold),
     }
+    return out
+
+
+def relief_field(source, *, variable: str | None = None, kind: str | None = None,
+                 argname: str = "relief") -> xr.DataArray:
+    """Surface height in m (negative below sea level) from a relief or sea-floor depth source.
+
+    The reader of :func:`ocean_fraction`, for callers that need the depth itself (the
+    ``over_shelf`` caution of :func:`~sverdrup_kit.physics.sverdrup.sverdrup_transport`).
+
+    Parameters
+    ----------
+    source : str, os.PathLike, xarray.Dataset or xarray.DataArray (lat, lon)
+        A relief (height, m, up) or sea-floor depth (m, positive down) field on a regular
+        latitude-longitude grid, or a file holding one.
+    variable, argname
+        As in :func:`ocean_fraction`.
+    kind : {"relief", "depth"}, optional
+        What the field holds, when its ``standard_name``, name or units do not say.
+
+    Returns
+    -------
+    xarray.DataArray (lat, lon)
+        ``relief`` in m, float64, on the source's grid (depths turned into heights), with a
+        ``source`` attribute saying which variable of which file it is.
+
+    Raises
+    ------
+    InputError
+        A variable that is not found, a land or ocean fraction, units that are not a length.
+    """
+    da, what = _read_source(source, variable, argname)
+    if kind is None:
+        kind = _kind_of(da, da.name)
+        if kind is None and _is_length(da.attrs.get("units")):
+            kind = "relief"
+    units = da.attrs.get("units")
+    if kind not in ("relief", "depth") or (units is not None and not _is_length(units)):
+        raise InputError(
+            f"{argname}: expected surface height or sea-floor depth in m, found {what} "
+            f"(standard_name {da.attrs.get('standard_name')!r}, units {units!r}"
+            f"{f', read as {kind}' if kind else ''}). Fix: pass a relief file such as ETOPO, "
+            f"or name its height variable with {argname}_variable."
+        )
+    lat, lon = find_latlon(da, argname=argname)
+    extra = [d for d in da.dims if d not in (lat, lon)]
+    if extra and all(da.sizes[d] == 1 for d in extra):
+        da = da.isel({d: 0 for d in extra}, drop=True)
+    elif extra:
+        raise GridError(
+            f"{argname}: expected a (lat, lon) field, found dimensions {da.dims}. Fix: select "
+            f"one field first, e.g. .isel({extra[0]}=0)."
+        )
+    scale = 1e3 if str(units).strip().lower() == "km" else 1.0
+    out = da.astype(np.float64) * (scale if kind == "relief" else -scale)
+    out = out.rename("relief")
+    out.attrs = {"long_name": "height of the surface (land) and of the sea floor",
+                 "standard_name": "surface_altitude", "units": "m",
+                 "source": what + ("" if kind == "relief" else " (sea-floor depth, sign turned)")}
     return out
 
 

@@ -37,6 +37,7 @@ from ..io.units import to_si
 
 __all__ = [
     "geostrophic_transport",
+    "open_ts_climatology",
     "balance_check",
     "LinearEquationOfState",
     "DEFAULT_REFERENCE_PRESSURE",
@@ -258,6 +259,118 @@ def _depth_dim(da: xr.DataArray, argname: str, lat: str, lon: str):
             f"found {values.min():g}..{values.max():g}. Fix: use depth positive down."
         )
     return name, values, is_pressure
+
+
+def open_ts_climatology(source, *, temperature_variable: str | None = None,
+                        salinity_variable: str | None = None) -> xr.Dataset:
+    """Open a temperature and salinity climatology and check it, reading only its metadata.
+
+    Parameters
+    ----------
+    source : str or os.PathLike
+        A NetCDF file holding in-situ temperature and practical salinity on depth levels
+        (m, positive down, or height levels, positive up) over a regular latitude-longitude
+        grid (any resolution, order and longitude convention).
+    temperature_variable, salinity_variable : str, optional
+        Names of the two variables, when the CF ``standard_name``, or the name and units, do
+        not find them.
+
+    Returns
+    -------
+    xarray.Dataset
+        ``temperature`` (degC) and ``salinity`` (depth, lat, lon), lazily read; other
+        dimensions (a monthly climatology's ``time``) are averaged away. ``column_depth``
+        (lat, lon), m: the depth of each column's deepest level with both. Attributes ``source``
+        (one line naming the file and the variables) and ``depth_dim``.
+
+    Raises
+    ------
+    FileNotFoundError, InputError, UnitsError, GridError
+        Each names the argument (``hydrography``, ``temperature_variable``,
+        ``salinity_variable``), what was expected, what was found and the fix.
+    """
+    import os
+
+    path = os.fspath(source)
+    if not os.path.isfile(path):
+        raise FileNotFoundError(
+            f"hydrography: expected a NetCDF file of temperature and salinity, found no file at "
+            f"{path!r}. Fix: check the path.")
+    try:
+        # Chunked: nothing is read until the first-mode speed is computed.
+        ds = xr.open_dataset(path, decode_times=False, chunks={})
+    except (OSError, ValueError) as err:
+        raise InputError(
+            f"hydrography: expected a NetCDF file of temperature and salinity, could not open "
+            f"{path!r} ({err.__class__.__name__}). Fix: check it with ncdump -h.") from None
+    found = {}
+    for what, given, table, units, words, example in (
+            ("temperature", temperature_variable, _TEMPERATURE_STANDARD_NAMES,
+             _CELSIUS | _KELVIN, ("temp", "theta", "pot"), ("sea_water_temperature", "degC")),
+            ("salinity", salinity_variable, _SALINITY_STANDARD_NAMES,
+             _PRACTICAL_UNITS | _ABSOLUTE_UNITS, ("sal",),
+             ("sea_water_practical_salinity", "PSU"))):
+        if given is not None:
+            if given not in ds.data_vars:
+                raise InputError(
+                    f"{what}_variable: expected a variable of {path!r}, found {given!r}; the "
+                    f"variables are {list(ds.data_vars)}. Fix: pass one of those.")
+            found[what] = ds[given]
+            continue
+        try:
+            found[what] = _pick_variable(ds, what, table, units, words)
+        except InputError:
+            raise InputError(
+                f"hydrography: expected a {what} variable in {path!r} (CF standard_name "
+                f"{example[0]}, or a name like '{words[0]}' with units such as {example[1]}), found variables {list(ds.data_vars)}. Fix: name it with "
+                f"{what}_variable.") from None
+    t, s = found["temperature"], found["salinity"]
+    named = {"temperature": t, "salinity": s}
+    for what, check in (("temperature", _temperature_celsius),
+                        ("salinity", _salinity_kind_from_units)):
+        da = named[what]
+        try:
+            check(da)
+        except UnitsError:
+            raise UnitsError(
+                f"{what}_variable: expected {what} ("
+                + ("degC or K" if what == "temperature" else "practical salinity: PSU, PSS-78, "
+                   "PPT or 1") + f"), found variable '{da.name}' with units "
+                f"{da.attrs.get('units')!r}. Fix: name the {what} variable with "
+                f"{what}_variable, or set its units attribute.") from None
+    kinds = (_kind(t, None, _TEMPERATURE_STANDARD_NAMES, _TEMPERATURE_KINDS, "in-situ",
+                   "temperature")[0],
+             _salinity_kind_from_units(s) or "practical")
+    if kinds != ("in-situ", "practical"):
+        raise InputError(
+            f"hydrography: expected in-situ temperature and practical salinity, found "
+            f"{kinds[0]} temperature '{t.name}' and {kinds[1]} salinity '{s.name}'. Fix: "
+            "convert them first (gsw.t_from_CT, gsw.SP_from_SA).")
+    lay = grid_layout(t, argname="hydrography")
+    zname, _, is_pressure = _depth_dim(t, "hydrography", lay.lat_name, lay.lon_name)
+    if is_pressure:
+        raise GridError(
+            f"hydrography: expected a depth axis in m, found '{zname}' in dbar. Fix: give the "
+            "levels as depth (-gsw.z_from_p(p, lat) at a mid-basin latitude is close enough "
+            "for the first mode).")
+    if t.dims != s.dims or t.shape != s.shape:
+        raise GridError(
+            f"hydrography: expected temperature and salinity on one grid, found "
+            f"{dict(t.sizes)} and {dict(s.sizes)}. Fix: name two variables of one climatology.")
+    extra = [d for d in t.dims if d not in (zname, lay.lat_name, lay.lon_name)]
+    note = ""
+    if extra:
+        t, s = t.mean(extra, keep_attrs=True), s.mean(extra, keep_attrs=True)
+        note = f", averaged over {', '.join(map(str, extra))}"
+    temperature = _temperature_celsius(t)
+    z = np.abs(temperature[zname])
+    out = xr.Dataset({
+        "temperature": temperature, "salinity": s.astype(np.float64),
+        "column_depth": z.where(temperature.notnull() & s.notnull()).max(zname).assign_attrs(
+            long_name="depth of the deepest level with temperature and salinity", units="m")})
+    return out.assign_attrs(
+        source=f"temperature '{t.name}' and salinity '{s.name}' of {path}{note}",
+        depth_dim=str(zname))
 
 
 # --- the numerical core: NumPy, one latitude row at a time -------------------------------------
