@@ -768,17 +768,29 @@ def screen(a, *, fills, sentinel, factor, limit):
 
 
 @_jit
-def _coverage_rows(tx, ty, cells, starts, out):
-    nc = cells.size
+def _coverage_slot(tx, ty, cells, starts, out, t, s):
+    hi = starts[s + 1] if s + 1 < starts.size else cells.size
+    n = 0
+    for k in range(starts[s], hi):
+        q = cells[k]
+        if np.isfinite(tx[t, q]) and np.isfinite(ty[t, q]):
+            n += 1
+    out[t, s] = n / (hi - starts[s])
+
+
+@_jit
+def _coverage_serial(tx, ty, cells, starts, out):
     for t in range(tx.shape[0]):
         for s in range(starts.size):
-            hi = starts[s + 1] if s + 1 < starts.size else nc
-            n = 0
-            for k in range(starts[s], hi):
-                q = cells[k]
-                if np.isfinite(tx[t, q]) and np.isfinite(ty[t, q]):
-                    n += 1
-            out[t, s] = n / (hi - starts[s])
+            _coverage_slot(tx, ty, cells, starts, out, t, s)
+
+
+@numba.njit(cache=True, error_model="numpy", parallel=True)
+def _coverage_parallel(tx, ty, cells, starts, out):
+    # Slots of every field in one parallel loop: a single field has thousands of them.
+    ns = starts.size
+    for k in numba.prange(tx.shape[0] * ns):
+        _coverage_slot(tx, ty, cells, starts, out, k // ns, k % ns)
 
 
 def coverage(tx, ty, cells, starts, slot, n_slots):
@@ -791,7 +803,8 @@ def coverage(tx, ty, cells, starts, slot, n_slots):
     out = np.full((TX.shape[0], n_slots), np.nan)
     if np.size(starts):
         share = np.empty((TX.shape[0], np.size(starts)))
-        _coverage_rows(TX, TY, np.ascontiguousarray(cells, dtype=np.int64),
-                       np.ascontiguousarray(starts, dtype=np.int64), share)
+        kernel = _coverage_parallel if _in_main_thread() else _coverage_serial
+        kernel(TX, TY, np.ascontiguousarray(cells, dtype=np.int64),
+               np.ascontiguousarray(starts, dtype=np.int64), share)
         out[:, slot] = share
     return out.reshape(lead + (n_slots,))

@@ -448,12 +448,13 @@ def sverdrup_transport(
                          min_width_km, fill_gaps,
                          given_mask=ocean_mask is not None or mask_from_geometry)
     fields = dict(curl=curl, v=v, psi=psi, transport=transport, crossings=crossings, count=count)
-    ds = _assemble(fields, plan, bid, names, lay, taux, settings)
-    ds = _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, taux,
-                      tx, gyre_threshold_sv=gyre_threshold_sv)
+    quality = _quality(geometry, status, observed, raw_crossings, raw_count, lay,
+                       gyre_threshold_sv=gyre_threshold_sv)
+    # Built once on the canonical grid, put in the user's order once at the end.
+    ds = _assemble(fields, plan, bid, names, lay, taux, settings, quality)
     if island_rule:
         ds = add_island_variables(ds, basin_bc, islands, lat)
-    return ds
+    return from_canonical(ds, lay, taux)
 
 
 @dataclass(frozen=True)
@@ -496,61 +497,53 @@ def _check_geometry(geometry, grid):
         )
 
 
-def _add_quality(ds, geometry, status, observed, raw_crossings, raw_count, lay, original,
-                 canon, *, gyre_threshold_sv):
-    """Row quality, raw crossings, land classes and seas, on the user's grid and order."""
+def _quality(geometry, status, observed, raw_crossings, raw_count, lay, *, gyre_threshold_sv):
+    """Row quality, raw crossings, land classes and seas (Variables on the canonical grid),
+    and the attributes that go with them."""
     lat, lon = lay.lat_name, lay.lon_name
     plan = geometry.plan
-    extra = xr.Dataset(
-        {
-            "row_status": status.assign_attrs(
-                long_name="status of the Sverdrup interior transport of each basin row",
-                **_flag_attrs(ROW_STATUS)),
-            "observed_fraction": observed.assign_attrs(
-                long_name="fraction of the row's counted cells with observed stress",
-                units="1",
-                comment="the rest was filled by nearest-ocean averaging (gaps, small "
-                "islands); row_status is mostly_filled where its mean over the leading "
-                f"dimensions is below {MIN_OBSERVED_FRACTION:g}"),
-            "raw_gyre_boundary_lat": raw_crossings.assign_attrs(
-                long_name="latitude of every sign change of the interior transport",
-                units="degrees_north",
-                comment="between neighbouring valid rows, without the threshold of "
-                "gyre_boundary_lat"),
-            "raw_gyre_boundary_count": raw_count.assign_attrs(
-                long_name="number of sign changes of the interior transport", units="1"),
-            "land_class": ((lat, lon), geometry.land.cls.copy(), {
-                "long_name": "land class",
-                "flag_values": np.arange(4, dtype=np.int8),
-                "flag_meanings": "ocean " + " ".join(v[0] for v in LAND_CLASSES.values()),
-                "comment": "; ".join(f"{v[0]}: {v[1]}" for v in LAND_CLASSES.values())}),
-        },
-        coords={lat: canon[lat], lon: canon[lon], "basin": ds["basin"].values},
-    )
+
+    def var(da, attrs):
+        return xr.Variable(da.dims, da.data, attrs)
+
+    out = {
+        "row_status": var(status, dict(
+            long_name="status of the Sverdrup interior transport of each basin row",
+            **_flag_attrs(ROW_STATUS))),
+        "observed_fraction": var(observed, dict(
+            long_name="fraction of the row's counted cells with observed stress",
+            units="1",
+            comment="the rest was filled by nearest-ocean averaging (gaps, small "
+            "islands); row_status is mostly_filled where its mean over the leading "
+            f"dimensions is below {MIN_OBSERVED_FRACTION:g}")),
+        "raw_gyre_boundary_lat": var(raw_crossings, dict(
+            long_name="latitude of every sign change of the interior transport",
+            units="degrees_north",
+            comment="between neighbouring valid rows, without the threshold of "
+            "gyre_boundary_lat")),
+        "raw_gyre_boundary_count": var(raw_count, dict(
+            long_name="number of sign changes of the interior transport", units="1")),
+        "land_class": xr.Variable((lat, lon), geometry.land.cls.copy(), {
+            "long_name": "land class",
+            "flag_values": np.arange(4, dtype=np.int8),
+            "flag_meanings": "ocean " + " ".join(v[0] for v in LAND_CLASSES.values()),
+            "comment": "; ".join(f"{v[0]}: {v[1]}" for v in LAND_CLASSES.values())}),
+    }
+    attrs = dict(basins=geometry.basins_used, gyre_threshold_sv=gyre_threshold_sv,
+                 land_connectivity=geometry.options["land_connectivity"])
     if geometry.basins_used.startswith("earth"):
-        extra["crossed_seas"] = (("basin", lat), plan.crossed_seas.astype(str), {
+        out["crossed_seas"] = xr.Variable(("basin", lat), plan.crossed_seas.astype(str), {
             "long_name": "named seas that the row's counted ocean crosses",
             "comment": "space-separated names from sverdrup_kit.geometry.earth.EARTH_SEAS"})
-        extra["ending_seas"] = (("basin", lat), plan.ending_seas.astype(str), {
+        out["ending_seas"] = xr.Variable(("basin", lat), plan.ending_seas.astype(str), {
             "long_name": "excluded seas whose edge ends the row's counted ocean",
             "comment": "the counted ocean ends where it meets these seas, as on a coast"})
-    extra = from_canonical(extra, lay, original)
-    out = ds.drop_vars(["row_status"]).merge(extra, compat="override", join="override")
-    out["gyre_boundary_lat"].attrs["comment"] = (
-        f"sign changes where the interior transport reaches {gyre_threshold_sv:g} Sv on both "
-        "sides, between valid rows only; every sign change is in raw_gyre_boundary_lat")
-    out.attrs.update(
-        basins=geometry.basins_used,
-        gyre_threshold_sv=gyre_threshold_sv,
-        land_connectivity=geometry.options["land_connectivity"],
-    )
-    if geometry.basins_used.startswith("earth"):
-        out.attrs["marginal_seas"] = (
+        policies = _policies(geometry)
+        attrs["marginal_seas"] = (
             "Earth seas (sverdrup_kit.geometry.earth.EARTH_SEAS): excluded "
-            + ", ".join(n for n, x in zip(geometry.sea_names, _policies(geometry)) if not x)
-            + "; counted " + ", ".join(n for n, x in zip(geometry.sea_names,
-                                                          _policies(geometry)) if x))
-    return out
+            + ", ".join(n for n, x in zip(geometry.sea_names, policies) if not x)
+            + "; counted " + ", ".join(n for n, x in zip(geometry.sea_names, policies) if x))
+    return out, attrs
 
 
 def _policies(geometry):
@@ -576,12 +569,14 @@ def _to_user_lon(x, original_lon):
     return np.where(np.isfinite(x), base + np.mod(x - base, 360.0), np.nan)
 
 
-def _assemble(fields, plan, bid, names, lay, original, settings: _Settings):
+def _assemble(fields, plan, bid, names, lay, original, settings: _Settings, quality):
     """The result Dataset from the computed ``fields`` (curl, v, psi, transport, crossings,
-    count) and the row plan, on the user's grid and order (``original``'s)."""
+    count), the row plan and the ``quality`` variables and attributes, on the canonical grid
+    (built from plain Variables: one Dataset, no alignment of its pieces)."""
     curl, v, psi = fields["curl"], fields["v"], fields["psi"]
     transport, crossings, count = fields["transport"], fields["crossings"], fields["count"]
     band = settings.equatorial_half_width
+    threshold = quality[1]["gyre_threshold_sv"]
     lat, lon = lay.lat_name, lay.lon_name
     hw = (lat, lon)
     basin = xr.DataArray(np.array(names, dtype=object), dims=("basin",), name="basin",
@@ -593,18 +588,18 @@ def _assemble(fields, plan, bid, names, lay, original, settings: _Settings):
     user_lon = original[lon].values
     ds = xr.Dataset(
         {
-            "wind_stress_curl": curl.assign_attrs(
+            "wind_stress_curl": _var(curl,
                 long_name="wind stress curl", units="N m-3",
                 comment="vertical component of the curl of the surface stress on the sphere, "
                 "after gaps and small islands were filled by nearest-ocean averaging",
             ),
-            "sverdrup_northward_transport": v.assign_attrs(
+            "sverdrup_northward_transport": _var(v,
                 long_name="Sverdrup meridional transport per unit width", units="m2 s-1",
                 comment="depth-integrated, V = curl(tau) / (rho0 beta); missing on land and in "
                 f"the equatorial band |lat| < {band:g} degrees; present on small islands, "
                 "where the stress is interpolated",
             ),
-            "sverdrup_streamfunction": psi.assign_attrs(
+            "sverdrup_streamfunction": _var(psi,
                 long_name="Sverdrup transport streamfunction", units=SV_UNITS,
                 comment="at cell centres, psi_i = -(sum of V dx over the cells east of i in its "
                 "run + V_i dx_i / 2): zero at the eastern face of each run (an eastern coast), "
@@ -612,24 +607,25 @@ def _assemble(fields, plan, bid, names, lay, original, settings: _Settings):
                 "zero west of each large island; missing in rows with no eastern coast and in "
                 "the equatorial band",
             ),
-            "interior_transport": transport.assign_attrs(
+            "interior_transport": _var(transport,
                 long_name="Sverdrup interior transport across the basin", units=SV_UNITS,
                 comment="zonal integral of the meridional transport from the eastern coast to "
                 "the western boundary, positive northward; marginal seas excluded. " + empty,
             ),
-            "boundary_current_transport": (-transport).assign_attrs(
+            "boundary_current_transport": _var(-transport,
                 long_name="western boundary current transport implied by Sverdrup balance",
                 units=SV_UNITS,
                 comment="minus the interior transport: the western boundary current returns "
                 "the interior flow, positive northward. " + empty,
             ),
-            "gyre_boundary_lat": crossings.assign_attrs(
+            "gyre_boundary_lat": _var(crossings,
                 long_name="latitude where the interior transport changes sign",
                 units="degrees_north",
-                comment="linear interpolation between two neighbouring valid rows, south to "
-                "north, NaN-padded; rows left empty are never bridged",
+                comment=f"sign changes where the interior transport reaches {threshold:g} Sv on "
+                "both sides, between valid rows only; every sign change is in "
+                "raw_gyre_boundary_lat",
             ),
-            "gyre_boundary_count": count.assign_attrs(
+            "gyre_boundary_count": _var(count,
                 long_name="number of sign changes of the interior transport", units="1",
                 comment="may exceed the length of the gyre_boundary dimension",
             ),
@@ -637,10 +633,6 @@ def _assemble(fields, plan, bid, names, lay, original, settings: _Settings):
             "integration_class": (hw, plan.cell_class, {
                 "long_name": "role of each cell in the westward integral",
                 **_flag_attrs(CELL_CLASS),
-            }),
-            "row_status": (("basin", lat), plan.row_status, {
-                "long_name": "status of the Sverdrup interior transport of each basin row",
-                **_flag_attrs(ROW_STATUS),
             }),
             "eastern_coast_lon": (("basin", lat), _to_user_lon(plan.east_lon, user_lon), {
                 "long_name": "longitude of the eastern coast where the integral starts",
@@ -653,14 +645,20 @@ def _assemble(fields, plan, bid, names, lay, original, settings: _Settings):
                 "comment": "cell face; where a row is split by large islands, the western face "
                 "of its westernmost run",
             }),
+            **quality[0],
         },
-        coords={"basin": basin},
+        coords={**curl.coords, **transport.coords, "basin": basin},
     )
-    ds = from_canonical(ds, lay, original)
     ds.attrs.update(
         settings.attrs(),
         small_islands="integrated across, with stress filled by nearest-ocean averaging",
         marginal_seas="runs cut off from the widest run of a basin row by a continent are not "
         "counted (integration_class 2)",
     )
+    ds.attrs.update(quality[1])
     return ds
+
+
+def _var(da, **attrs):
+    """The data of ``da`` as a plain Variable with ``attrs`` (no coordinates to align)."""
+    return xr.Variable(da.dims, da.data, attrs)

@@ -456,5 +456,11 @@ def test_compiled_coverage_matches_numpy_coverage():
     slot = np.array([4, 0, 2, 5])
     ref = _scan.coverage_numpy(tx, ty, cells, starts, slot, 7)
     got = _fast.coverage(tx, ty, cells, starts, slot, 7)
+    box = {}
+    th = threading.Thread(target=lambda: box.setdefault(
+        "out", _fast.coverage(tx, ty, cells, starts, slot, 7)))  # the serial twin
+    th.start()
+    th.join()
     np.testing.assert_array_equal(got, ref)
+    np.testing.assert_array_equal(box["out"], ref)
     assert np.isnan(got[:, [1, 3, 6]]).all() and np.isfinite(got[:, slot]).all()
