@@ -138,29 +138,47 @@ def _runs(lon, ext, member, code, label, coastal, periodic, gap_factor):
     if where.size == 0:
         z = np.zeros(1, dtype=np.int64)
         return _Runs(z, z + m - 1, z, z + _END_WATER, z + _END_WATER, [[]], [[]], True)
-    kinds, cells = [], []
+    kinds_w, kinds_e, cells = [], [], []
     for k in where:
         if k == m - 1:
             inside = np.r_[np.arange(pos[-1] + 1, n), np.arange(0, pos[0])]
         else:
             inside = np.arange(pos[k] + 1, nxt[k])
-        ends = coastal[pos[k]] or coastal[nxt[k]]
         if not periodic and k == m - 1:
             # A regional grid: the band's two ends are the ends of the grid or coasts.
-            kinds.append(_gap_kind(code[inside], label[inside], False) if inside.size
-                         else _END_EDGE)
-            kinds[-1] = _END_COAST if kinds[-1] == _JOIN else kinds[-1]
+            kind = (_gap_kind(code[inside], label[inside], False) if inside.size
+                    else _END_EDGE)
+            kind = _END_COAST if kind == _JOIN else kind
+            kinds_w.append(kind)
+            kinds_e.append(kind)
+        elif _gap_kind(code[inside], label[inside], False) == _JOIN:
+            kinds_w.append(_JOIN)
+            kinds_e.append(_JOIN)
         else:
-            kinds.append(_gap_kind(code[inside], label[inside], ends))
+            # Each end of a gap is what lies next to the run there: land within a cell or
+            # two (the staircase of a coast crossing the band), or a coastal dividing line,
+            # is a coast; another basin's water across an open dividing line is not, however
+            # much land lies farther along the gap (South America seen from the Atlantic's
+            # eastern end at 50S, round the globe).
+            reach_w = gap_factor * ext[pos[k]]
+            reach_e = gap_factor * ext[nxt[k]]
+            near_w = inside[np.mod(lon[inside] - lon[pos[k]], 360.0) <= reach_w]
+            near_e = inside[np.mod(lon[nxt[k]] - lon[inside], 360.0) <= reach_e]
+            near_w = near_w if near_w.size else inside[:1]
+            near_e = near_e if near_e.size else inside[-1:]
+            kinds_w.append(_END_COAST if (np.any(code[near_w] != _WATER) or coastal[pos[k]])
+                           else _END_WATER)
+            kinds_e.append(_END_COAST if (np.any(code[near_e] != _WATER) or coastal[nxt[k]])
+                           else _END_WATER)
         cells.append(inside)
-    kinds = np.asarray(kinds)
+    kinds_w, kinds_e = np.asarray(kinds_w), np.asarray(kinds_e)
     # Run r: members after gap r-1 up to gap r (cyclic); its east gap is gap r.
     last = where
     first = (np.roll(where, 1) + 1) % m
     nr = where.size
-    east_kind = kinds
-    west_kind = np.roll(kinds, 1)
-    join = kinds == _JOIN
+    east_kind = kinds_w
+    west_kind = np.roll(kinds_e, 1)
+    join = kinds_w == _JOIN
     if join.all():
         z = np.zeros(1, dtype=np.int64)
         return _Runs(np.array([0]), np.array([m - 1]), z, z + _END_WATER, z + _END_WATER,

@@ -581,3 +581,20 @@ def test_earth_seas_on_a_rotated_grid(earth_on_a_rotated_grid):
     assert "bay_of_bengal" in ds.crossed_seas.sel(basin="indian", lat=15.5).item()
     assert "labrador_sea" in ds.crossed_seas.sel(basin="atlantic", lat=59.5).item()
     assert ds.attrs["basins"] == "earth"
+
+
+@pytest.mark.realdata
+def test_no_valid_band_spans_two_oceans_on_a_rotated_grid(earth_on_a_rotated_grid):
+    # Issue 10's first rule, on a model grid: south of the capes a band of a basin ends on an
+    # open dividing line (the meridians of Cape Agulhas, Tasmania and Cape Horn), so it has no
+    # eastern or no western coast and is never valid (common practice: the Atlantic, Pacific
+    # and Indian basins end at those capes, Times Atlas of the World). Before, the land far
+    # along the gap (South America seen from the Atlantic's eastern end) counted as a coast
+    # and the bands at 45-61S were valid (-80 Sv in the Indian Ocean at 60S).
+    _, _, ds = earth_on_a_rotated_grid
+    valid = ds.row_status == 0
+    assert int(valid.sum()) > 100  # not vacuous
+    assert not valid.sel(lat=slice(-61, -45)).any()
+    span = (ds.eastern_coast_lon - ds.western_coast_lon) % 360
+    assert float(span.where(valid).max()) <= 180.0
+    assert set(np.unique(ds.row_status.sel(lat=slice(-61, -45)).values)) <= {2, 5, 8}
