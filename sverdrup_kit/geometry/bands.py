@@ -166,10 +166,11 @@ def _runs(lon, ext, member, code, label, coastal, periodic, gap_factor):
             near_e = inside[np.mod(lon[nxt[k]] - lon[inside], 360.0) <= reach_e]
             near_w = near_w if near_w.size else inside[:1]
             near_e = near_e if near_e.size else inside[-1:]
-            kinds_w.append(_END_COAST if (np.any(code[near_w] != _WATER) or coastal[pos[k]])
-                           else _END_WATER)
-            kinds_e.append(_END_COAST if (np.any(code[near_e] != _WATER) or coastal[nxt[k]])
-                           else _END_WATER)
+            # A coastal line may be flagged on either cell of the link it cuts.
+            kinds_w.append(_END_COAST if (np.any(code[near_w] != _WATER) or coastal[pos[k]]
+                                          or np.any(coastal[near_w])) else _END_WATER)
+            kinds_e.append(_END_COAST if (np.any(code[near_e] != _WATER) or coastal[nxt[k]]
+                                          or np.any(coastal[near_e])) else _END_WATER)
         cells.append(inside)
     kinds_w, kinds_e = np.asarray(kinds_w), np.asarray(kinds_e)
     # Run r: members after gap r-1 up to gap r (cyclic); its east gap is gap r.

@@ -105,9 +105,12 @@ EARTH_DIVIDING_LINES = {
     # The Arctic Ocean and the Nordic Seas are left out: the parallel 65.5N crosses Bering
     # Strait (65.8N), Davis Strait, Denmark Strait and the Iceland-Norway gap at once.
     "arctic_65.5N": [(0.0, 65.5), (360.0, 65.5)],
-    # The Mediterranean and Black Sea are left out: Strait of Gibraltar (5.6W) and Suez.
+    # The Mediterranean and Black Sea are left out: Strait of Gibraltar (5.6W) and Suez. The
+    # Suez line runs at 30.0N, between the Gulf of Suez (29.9N) and the coast at Port Said
+    # (31.2N): coarse masks whose Mediterranean cells reach down to 30.5N and Red Sea cells up
+    # to 29.5N still meet across it.
     "gibraltar": [(354.4, 38.0), (354.4, 34.0)],
-    "suez": [(28.0, 30.5), (38.0, 30.5)],
+    "suez": [(28.0, 30.0), (38.0, 30.0)],
 }
 
 #: Dividing lines that stand for land or a shallow strait the grid may miss: a basin row that

@@ -21,7 +21,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["EARTH_PROBES", "EARTH_LANDMARKS", "EARTH_STRAITS", "EARTH_SEAS",
+__all__ = ["EARTH_PROBES", "EARTH_LANDMARKS", "EARTH_CONTINENT_NAMES", "EARTH_STRAITS", "EARTH_SEAS",
            "EARTH_PROBE_AGREEMENT", "looks_like_earth"]
 
 #: (lon, lat) of points that are land, and points that are open ocean, on the real Earth.
@@ -59,6 +59,10 @@ EARTH_PROBES = {
 
 #: Share of :data:`EARTH_PROBES` a mask must get right to count as the Earth's.
 EARTH_PROBE_AGREEMENT = 0.9
+
+#: The continents among :data:`EARTH_LANDMARKS`; every other landmark names an island.
+EARTH_CONTINENT_NAMES = ("Eurasia", "Africa", "North America", "South America", "Antarctica",
+                         "Australia")
 
 #: Named land bodies: name -> (lon, lat) of a point well inside it. Listed from the largest
 #: down, so that a land body holding several points (Australia with New Guinea and Tasmania

@@ -29,7 +29,7 @@ from scipy import ndimage
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
-from .earth import EARTH_LANDMARKS, EARTH_STRAITS, looks_like_earth
+from .earth import EARTH_CONTINENT_NAMES, EARTH_LANDMARKS, EARTH_STRAITS, looks_like_earth
 from .grid import SphericalGrid
 from .lines import label_cells, line_cuts
 
@@ -243,6 +243,14 @@ def land_bodies(ocean, grid, *, island_min_area_km2=ISLAND_MIN_AREA,
             cell = grid.cell_of_point(lon0, lat0)
             if cell is not None and labels[cell] >= 0:
                 names[int(labels[cell])].append(name)
+        # A named island cut by the grid's edge (Greenland on a grid that stops at 80N) is
+        # still an island: classed by its area on the grid, a lower bound, rather than taken
+        # for a continent of unknown size.
+        for k in np.flatnonzero(edge):
+            if names[k] and not set(names[k]) & set(EARTH_CONTINENT_NAMES):
+                body[k] = (CONTINENT if area[k] >= continent_min_area_km2 else
+                           SMALL_ISLAND if area[k] < island_min_area_km2 else LARGE_ISLAND)
+                source[k] = "area (a named island cut by the edge of the grid)"
     if land_classes:
         if not isinstance(land_classes, Mapping):
             raise TypeError(

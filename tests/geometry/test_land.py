@@ -122,6 +122,24 @@ def test_earth_islands_are_islands(earth_tables, res):
 
 
 @pytest.mark.realdata
+def test_a_named_island_cut_by_the_grid_edge_stays_an_island(etopo60):
+    # Many ocean products stop at 80N. Greenland (2.2e6 km2, the largest island, Times Atlas
+    # of the World, from memory) is then cut by the edge: its size on the grid is a lower
+    # bound, not unknown, and it is still an island; an unnamed body cut by the edge (the
+    # Antarctic coast on a grid that stops at 80S) stays a continent of unknown size.
+    e = xr.open_dataset(etopo60)
+    rose = e[list(e.data_vars)[0]]
+    lat = rose.dims[0]
+    cut = rose.sortby(lat).sel({lat: slice(-80.0, 80.0)})
+    t = island_table(cut < 0)
+    g = _body(t, "Greenland")
+    assert bool(g.cut_by_edge) and int(g.land_class) == 2
+    assert "named island" in str(g.class_source.values)
+    south = t.isel(island=int(np.argmin(t.south_lat.values)))
+    assert bool(south.cut_by_edge) and int(south.land_class) == 3
+
+
+@pytest.mark.realdata
 def test_every_landmark_lies_on_land_of_the_one_degree_relief(etopo60):
     # Each landmark is a point well inside its body (Times Atlas of the World, from memory);
     # on the 1 degree relief its cell must be land.

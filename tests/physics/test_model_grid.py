@@ -330,6 +330,17 @@ def test_marine_climatology_on_a_rotated_model_grid(marine_climatology):
     cv = sk.sverdrup_transport(as_field(txc, lat, lon), as_field(tyc, lat, lon),
                                basins="earth", ocean_mask=ocean)
     assert list(cv.basin.values) == ["atlantic", "pacific", "indian"]
+    # The same rows are valid on both grids from 60S to 64N (issue 10's rules on the model
+    # grid): south of the capes neither has a valid row, and both count the same seas.
+    span = dict(lat=slice(-60.0, 64.0))
+    both = reg1.row_status.sel(**span) == 0
+    np.testing.assert_array_equal(both.values, (cv.row_status.sel(**span) == 0).values)
+    # The regular 1-degree grid stops at 80N, cutting Greenland: still a (large) island, so
+    # the Atlantic rows south of it are valid; the Mediterranean and Black Sea, which this
+    # coarse mask brings within a cell of the Red Sea at Suez, are not counted (common
+    # practice, as on regular grids in issue 10).
+    assert bool(both.sel(basin="atlantic", lat=slice(56, 62)).all())
+    assert not bool(both.sel(basin="indian", lat=slice(31, 48)).any())
     bands = np.arange(20.5, 40.0, 1.0)
     for name in ("atlantic", "pacific"):
         got = cv.interior_transport.sel(basin=name, lat=bands).values
