@@ -1,8 +1,10 @@
 """The geometry of the Sverdrup integral on a curvilinear model grid, by latitude band.
 
 The model grid's rows need not follow latitude circles, so the westward integral runs along
-*bands*: the cells whose centres lie in one band of latitude, in order of longitude. Everything
-the regular-grid geometry decides row by row (:mod:`.rows`) is decided here band by band, from
+*bands*: the cells that overlap one band of latitude by at least :data:`MEMBER_SHARE` of their
+latitude extent (their centres may lie in the next band where rows tilt), in order of
+longitude. Everything the regular-grid geometry decides row by row (:mod:`.rows`) is decided
+here band by band, from
 the same land classes (:func:`.land.land_bodies`, labelled through the model grid's own
 neighbours), basins (:func:`.basins._earth_basins` on the model grid, or the user's) and Earth
 seas (:func:`.basins.earth_seas`):
@@ -32,6 +34,9 @@ import numpy as np
 from .land import CONTINENT, LARGE_ISLAND, SMALL_ISLAND, LandBodies
 
 __all__ = ["BandPlan", "ModelGeometry", "band_edges", "plan_bands"]
+
+#: Share of its latitude extent by which a cell must overlap a band to shape the band's runs.
+MEMBER_SHARE = 0.45
 
 # What a cell is to the runs of one basin in one band.
 _MEMBER, _ISLAND, _COAST, _WATER = 0, 1, 2, 3
@@ -251,14 +256,34 @@ def plan_bands(grid, land: LandBodies, bid, n_basins, *, band_width=None,
     area = grid.cell_area.ravel()
     equatorial = np.abs(centres) < equatorial_half_width
 
+    # The cells of a band: every cell whose latitude extent overlaps it, not only those whose
+    # centres lie in it. Where the grid's rows tilt across band edges (a tripolar cap, a
+    # rotated grid) the centres skip a band over whole stretches of longitude, and a band
+    # built from centres alone would end there as if on a coast.
+    clat, _ = grid.corners_latlon
+    corners = np.stack([clat[:-1, :-1], clat[:-1, 1:], clat[1:, 1:], clat[1:, :-1]])
+    lo, hi = corners.min(axis=0).ravel(), corners.max(axis=0).ravel()
+    lo_band = np.clip(np.searchsorted(edges, lo, side="right") - 1, 0, nb - 1)
+    hi_band = np.clip(np.searchsorted(edges, hi, side="left") - 1, 0, nb - 1)
+    # A cell belongs to a band it overlaps by at least MEMBER_SHARE of its latitude extent
+    # (the round-off overlap of cells whose edges are the band's edges does not count).
+    ext_lat = np.maximum(hi - lo, 1e-12)
+    lo_in = np.minimum(edges[np.minimum(lo_band + 1, nb)], hi) - lo >= MEMBER_SHARE * ext_lat
+    hi_in = hi - np.maximum(edges[hi_band], lo) >= MEMBER_SHARE * ext_lat
+    lo_band = np.where(lo_in | (lo_band == band_of), lo_band, lo_band + 1)
+    hi_band = np.where(hi_in | (hi_band == band_of), hi_band, hi_band - 1)
+    n_over = np.maximum(hi_band, band_of) - np.minimum(lo_band, band_of) + 1
+    cell_of = np.repeat(np.arange(lat.size), n_over)
+    band_all = np.repeat(np.minimum(lo_band, band_of), n_over) + (
+        np.arange(cell_of.size) - np.repeat(np.cumsum(n_over) - n_over, n_over))
     # Circumpolar bands: the water of all basins wraps round with no land between.
-    order = np.lexsort((lon, band_of))
-    seg = np.r_[0, np.flatnonzero(np.diff(band_of[order])) + 1, order.size]
+    order = np.lexsort((lon[cell_of], band_all))
+    seg = np.r_[0, np.flatnonzero(np.diff(band_all[order])) + 1, order.size]
     circ = np.zeros(nb, dtype=bool)
     per_band = {}
     for a, z in zip(seg[:-1], seg[1:]):
-        idx = order[a:z]
-        j = int(band_of[idx[0]])
+        idx = cell_of[order[a:z]]
+        j = int(band_all[order[a]])
         per_band[j] = idx
         w = water[idx]
         if grid.periodic and w.any():
@@ -310,8 +335,9 @@ def plan_bands(grid, land: LandBodies, bid, n_basins, *, band_width=None,
                     slot = b * nb + j if cls_val == 1 else -1
                     k = _add_run(runs, b, j, 0, bl, be, p, slot, cls_val)
                     cells = idx[p]
-                    cell_run[cells] = k
-                    cell_class[cells] = cls_val
+                    own = cells[band_of[cells] == j]
+                    cell_run[own] = k
+                    cell_class[own] = cls_val
                     if slot >= 0:
                         for q in np.unique(seas[cells][seas[cells] >= 0]):
                             if sea_names[q] not in crossed[b, j].split():
@@ -335,8 +361,9 @@ def plan_bands(grid, land: LandBodies, bid, n_basins, *, band_width=None,
                     f, last = rs.first[r], rs.last[r]
                     p = pos[f:last + 1] if f <= last else np.r_[pos[f:], pos[:last + 1]]
                     k = _add_run(runs, b, j, 1, bl, be, p, -1, 2)
-                    cell_run[idx[p]] = k
-                    cell_class[idx[p]] = 2
+                    own = idx[p][band_of[idx[p]] == j]
+                    cell_run[own] = k
+                    cell_class[own] = 2
 
     # Continents passed whole by a band's counted span (spans_two_oceans).
     for b in range(n_basins):
@@ -361,9 +388,6 @@ def plan_bands(grid, land: LandBodies, bid, n_basins, *, band_width=None,
     kind_of = np.where(excl, 1, 0)
 
     # Triplets: every integrated cell in every band its latitude extent overlaps.
-    clat, _ = grid.corners_latlon
-    corners = np.stack([clat[:-1, :-1], clat[:-1, 1:], clat[1:, 1:], clat[1:, :-1]])
-    lo, hi = corners.min(axis=0).ravel(), corners.max(axis=0).ravel()
     span = np.maximum(hi - lo, 1e-12)
     first = np.clip(np.searchsorted(edges, lo, side="right") - 1, 0, nb - 1)
     last = np.clip(np.searchsorted(edges, hi, side="left") - 1, 0, nb - 1)
