@@ -98,8 +98,9 @@ def band_edges(grid, band_width):
             f"band_width: expected a positive number of degrees, found {band_width!r}. "
             "Fix: e.g. band_width=1.0."
         )
-    n = int(np.ceil(180.0 / band_width))
-    return -90.0 + band_width * np.arange(n + 1)
+    n = int(np.ceil(180.0 / band_width - 1e-9))
+    # The last band ends at the pole: narrower when the width does not divide 180 degrees.
+    return np.minimum(-90.0 + band_width * np.arange(n + 1), 90.0)
 
 
 @dataclass

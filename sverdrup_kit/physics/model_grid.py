@@ -341,6 +341,7 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
                                              "standard_name": "latitude",
                                              "long_name": "centre of the latitude band"})}
     transport = transport.assign_coords(coords)
+    curl, v, psi = (_grid_coords_apart(x) for x in (curl, v, psi))
     ds = xr.Dataset({
         "wind_stress_curl": curl.transpose(*taux.dims).assign_attrs(
             long_name="wind stress curl", units="N m-3",
@@ -391,6 +392,22 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
                     grid=repr(grid), corners_from=grid.corners_from,
                     method="curvilinear: Stokes curl per cell, latitude-band sums")
     return ds
+
+
+#: Names of the model grid's own latitude and longitude in results that also carry a ``lat``
+#: band coordinate (the band sums): CF finds them by their standard names.
+GRID_LAT, GRID_LON = "grid_lat", "grid_lon"
+
+
+def _grid_coords_apart(da: xr.DataArray) -> xr.DataArray:
+    """``da`` with its two-dimensional latitude and longitude named apart from the ``lat``
+    of the latitude bands (a Dataset holds one variable of each name)."""
+    from ..geometry.curvilinear import find_curvilinear_coords
+
+    names = find_curvilinear_coords(da)
+    if names is None or not {"lat", "lon"} & set(names):
+        return da
+    return da.rename({names[0]: GRID_LAT, names[1]: GRID_LON})
 
 
 def model_circulation(u, v, *, thickness=None, depth_dim=None, taux=None, tauy=None,

@@ -19,6 +19,7 @@ from .. import _validate, constants
 from .._apply import _bare, whole_fields
 from .._compiled.dispatch import coverage, curl_kernel, fill_pair, westward_scan
 from .._compiled.scan import gyre_boundaries, sum_groups
+from ..errors import InputError
 from ..geometry.basins import (
     CELL_CLASS,
     CONTINENT_MIN_AREA,
@@ -324,13 +325,26 @@ def sverdrup_transport(
     if is_curvilinear(taux):
         from .model_grid import model_grid_sverdrup
 
-        return model_grid_sverdrup(
+        for name, value in (("relief", relief), ("geometry", geometry)):
+            if value is not None:
+                raise InputError(
+                    f"{name}: expected None on a model grid (two-dimensional latitude and "
+                    f"longitude), found {type(value).__name__}: {name}= serves regular "
+                    "latitude-longitude grids only (the over_shelf caution and reusable "
+                    f"geometry are not built on model grids yet). Fix: drop {name}=, or "
+                    "regrid the stress to a regular grid first.")
+        ds = model_grid_sverdrup(
             taux, require_dataarray(tauy, "tauy"), ocean_mask=ocean_mask, basins=basins,
             rho0=rho0, equatorial_half_width=equatorial_half_width, radius=radius, omega=omega,
             island_min_area_km2=island_min_area_km2,
             continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km,
             fill_gaps=fill_gaps, land_connectivity=land_connectivity,
             land_classes=land_classes, seas=seas)
+        if island_rule:
+            ds.attrs["island_rule"] = (
+                "not applied: Godfrey's island rule is not available on model grids; the "
+                "streamfunction restarts at zero west of each large island")
+        return ds
     tauy = require_dataarray(tauy, "tauy")
     check_same_grid(taux, tauy, ("taux", "tauy"))
     rho0 = _validate.number(rho0, "rho0", units="kg m-3", example=1025.0)

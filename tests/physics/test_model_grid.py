@@ -624,3 +624,20 @@ def test_no_valid_band_spans_two_oceans_on_a_rotated_grid(earth_on_a_rotated_gri
     span = (ds.eastern_coast_lon - ds.western_coast_lon) % 360
     assert float(span.where(valid).max()) <= 180.0
     assert set(np.unique(ds.row_status.sel(lat=slice(-61, -45)).values)) <= {2, 5, 8}
+
+
+def test_model_grid_result_keeps_its_coordinates_and_refuses_regular_only_options():
+    # The band coordinate 'lat' and the model grid's own two-dimensional latitude live in one
+    # Dataset: the latter is renamed grid_lat/grid_lon (CF finds them by standard name), not
+    # dropped. Options built for regular grids are refused in one clear message, not ignored.
+    lat, lon, clat, clon = rotated_pole_grid(4.0, pole_lat=60.0, pole_lon=200.0)
+    land = _land(lat, lon)
+    tx = as_field(np.where(land, np.nan, -0.1 * np.cos(np.deg2rad(4.0 * (lat - 15)))), lat,
+                  lon)
+    ds = sk.sverdrup_transport(tx, 0 * tx)
+    assert ds["grid_lat"].dims == ("y", "x") and ds["grid_lat"].attrs["units"] == "degrees_north"
+    np.testing.assert_array_equal(ds["grid_lat"].values, lat)
+    assert ds["lat"].dims == ("lat",) and float(ds["lat"].max()) < 90.0
+    assert "not applied" in ds.attrs["island_rule"]
+    with pytest.raises(sk.errors.InputError, match="relief: expected None on a model grid"):
+        sk.sverdrup_transport(tx, 0 * tx, relief=tx)
