@@ -503,6 +503,9 @@ def _shelf_summary(res, say) -> None:
 def _adjustment_summary(res, say, lats) -> None:
     """Rossby-wave crossing times and the rows whose time-resolved transport had time to adjust."""
     if "basin_crossing_time" not in res:
+        if str(res.attrs.get("stratification", "")).startswith("none"):
+            say("Rossby-wave adjustment: not computed (the winds are on a model grid; it "
+                "follows rows of latitude on regular grids only)")
         return
     years = res["basin_crossing_time"] / 365.25
     if "stratification" in res.attrs:

@@ -12,11 +12,13 @@ import numpy as np
 import xarray as xr
 
 from . import constants
-from .errors import BuiltinOceanMaskWarning
+from .errors import BuiltinOceanMaskWarning, InputError
+from .geometry.curvilinear import find_curvilinear_coords, is_curvilinear
 from .io import masks as _masks
 from .physics.ekman import DEFAULT_EQUATORIAL_HALF_WIDTH, ekman
 from .physics.stress import wind_stress
 from .physics.adjustment import adjustment_flags, averaging_period, rossby_adjustment
+from .physics.model_grid import GRID_LAT, GRID_LON
 from .physics.sverdrup import sverdrup_transport
 
 __all__ = ["OPEN_OCEAN_DEPTH", "diagnose", "first_mode_speed_on"]
@@ -315,20 +317,38 @@ def diagnose(
     sv = sverdrup_transport(mean["taux"], mean["tauy"], basins=basins, ocean_mask=ocean_mask, rho0=rho0,
                   equatorial_half_width=equatorial_half_width, **shelf)
     ek = ekman(mean["taux"], mean["tauy"], rho0=rho0, equatorial_half_width=equatorial_half_width)
-    c1, stratification = _first_mode_on(first_mode_speed, mean["taux"])
-    adj = rossby_adjustment(sv, first_mode_speed=c1)
-    adj["first_mode_gravity_wave_speed"].attrs["comment"] = stratification
-    out = xr.merge([mean, ek, sv, adj], compat="override", combine_attrs="drop_conflicts")
+    model_grid = is_curvilinear(mean["taux"])
     dated = has_time and stress.sizes["time"] > 1 and _dated(stress["time"])
-    out["sverdrup_adjusted"] = adjustment_flags(adj["basin_crossing_time"],
-                                                time=stress["time"] if dated else None)
+    if model_grid:
+        # The Rossby-wave adjustment follows rows of latitude from coast to coast; model grids
+        # have bands of cells instead, and no adjustment is built on them yet.
+        if first_mode_speed is not None:
+            raise InputError(
+                "first_mode_speed: expected None for winds on a model grid (two-dimensional "
+                "latitude and longitude), found a stratification: the Rossby-wave adjustment "
+                "is computed on regular latitude-longitude grids only. Fix: drop it (the "
+                "command line's --hydrography), or regrid the winds first.")
+        stratification = "none: no Rossby-wave adjustment on a model grid"
+        # The model grid's latitude and longitude take the names the Sverdrup result gives
+        # them, apart from its latitude bands.
+        mean, ek = (x.rename({a: b for a, b in zip(find_curvilinear_coords(mean["taux"]),
+                                                  (GRID_LAT, GRID_LON)) if a in x.coords})
+                    for x in (mean, ek))
+        out = xr.merge([mean, ek, sv], compat="override", combine_attrs="drop_conflicts")
+    else:
+        c1, stratification = _first_mode_on(first_mode_speed, mean["taux"])
+        adj = rossby_adjustment(sv, first_mode_speed=c1)
+        adj["first_mode_gravity_wave_speed"].attrs["comment"] = stratification
+        out = xr.merge([mean, ek, sv, adj], compat="override", combine_attrs="drop_conflicts")
+        out["sverdrup_adjusted"] = adjustment_flags(adj["basin_crossing_time"],
+                                                    time=stress["time"] if dated else None)
     if has_time:
         monthly = sverdrup_transport(stress["taux"], stress["tauy"], basins=basins, ocean_mask=ocean_mask,
                            rho0=rho0, equatorial_half_width=equatorial_half_width, **shelf)
         out["interior_transport_by_time"] = monthly["interior_transport"].assign_attrs(
             monthly["interior_transport"].attrs,
             long_name="Sverdrup interior transport of each time step",
-            ancillary_variables="sverdrup_adjusted",
+            **({} if model_grid else {"ancillary_variables": "sverdrup_adjusted"}),
             adjustment_time_scale=averaging_period(stress["time"])[0] if dated else "unknown",
         )
     out.attrs.update(

@@ -355,3 +355,44 @@ def test_spread_refuses_a_users_folder_before_computing(small_winds, tmp_path, c
     err = capsys.readouterr().err.strip()
     assert code == 2 and "--overwrite" in err and err.count("\n") == 0
     assert (out / "spread.nc").read_text() == "my own spread"
+
+
+def test_model_grid_winds_run_from_the_command_line(tmp_path, capsys):
+    # Issue 14 on the command line: winds on a tripolar model grid (the invented synthetic
+    # world sampled onto it by nearest cell) give results on the model's own cells, the band
+    # transports under the regular names, and the standard maps (drawn on a display grid).
+    from sverdrup_kit import open_results
+    from sverdrup_kit.synthetic import load_world
+    from sverdrup_kit.synthetic_grids import tripolar_grid, with_bounds
+
+    world = load_world()[["u", "v"]].isel(time=[0, 6])
+    lat, lon, clat, clon = tripolar_grid(4.0, lon0=80.0, south=-78.0)
+    at = dict(lat=xr.DataArray(lat, dims=("y", "x")),
+              lon=xr.DataArray(np.mod(lon, 360.0), dims=("y", "x")))
+    picked = world.sel(**at, method="nearest")
+    ds = xr.Dataset(
+        {n: (("time", "y", "x"), picked[n].values, {"units": "m s-1", "standard_name": s})
+         for n, s in (("u", "eastward_wind"), ("v", "northward_wind"))},
+        coords={"time": world.time.values,
+                "lat": (("y", "x"), lat, {"units": "degrees_north", "bounds": "lat_bounds"}),
+                "lon": (("y", "x"), lon, {"units": "degrees_east", "bounds": "lon_bounds"})})
+    path = tmp_path / "model_winds.nc"
+    with_bounds(ds, clat, clon).to_netcdf(path)
+    out = tmp_path / "out"
+    code = main(["diagnose", str(path), "--out", str(out), "--no-progress"])
+    printed = capsys.readouterr().out
+    assert code == 0
+    assert "not computed (the winds are on a model grid" in printed
+    res = open_results(out / "results.nc")
+    assert res["grid_lat"].dims == ("y", "x") and res["lat"].dims == ("lat",)
+    assert res["sverdrup_streamfunction"].dims == ("y", "x")
+    assert res["interior_transport"].dims == ("basin", "lat")
+    assert int((res.row_status == 0).sum()) > 10
+    for name in ("wind_stress_map", "sverdrup_streamfunction_map",
+                 "interior_transport_by_latitude"):
+        assert (out / f"{name}.png").stat().st_size > 10_000
+    # A stratification needs rows of latitude: refused in one line before anything is written.
+    code = main(["diagnose", str(path), "--out", str(tmp_path / "out2"), "--no-progress",
+                 "--hydrography", str(path)])
+    err = capsys.readouterr().err.strip().splitlines()
+    assert code != 0 and len(err) == 1 and "Fix:" in err[0]

@@ -52,8 +52,69 @@ def quiet_mean():
         yield
 
 
+def _display_index(grid, d, lat=None):
+    """Display grid of ``d`` degrees (rows at ``lat`` when given): its latitudes, longitudes,
+    and for each display cell the nearest model cell (flat index) or -1 farther than ``d``
+    from every model cell."""
+    from ..geometry.curvilinear import _unit
+
+    lat = np.arange(-90.0 + d / 2, 90.0, d) if lat is None else np.asarray(lat, float)
+    lon = np.arange(d / 2, 360.0, d)
+    la, lo = np.meshgrid(lat, lon, indexing="ij")
+    dist, idx = grid._tree.query(_unit(la.ravel(), lo.ravel()))
+    return lat, lon, np.where(dist <= np.deg2rad(d), idx, -1).reshape(la.shape)
+
+
+def _resampled(da, dims, lat, lon, idx):
+    lead = [x for x in da.dims if x not in dims]
+    vals = np.asarray(da.transpose(*lead, *dims).values)
+    flat = vals.reshape(vals.shape[:-2] + (-1,))
+    fill = np.nan if flat.dtype.kind == "f" else (-1 if flat.dtype.kind in "iu" else 0)
+    out = np.where(idx >= 0, flat[..., np.maximum(idx, 0)], fill)
+    coords = {k: da[k] for k in lead if k in da.coords}
+    coords.update(lat=("lat", lat, {"units": "degrees_north", "standard_name": "latitude"}),
+                  lon=("lon", lon, {"units": "degrees_east", "standard_name": "longitude"}))
+    return xr.DataArray(out, dims=(*lead, "lat", "lon"), coords=coords, attrs=dict(da.attrs),
+                        name=da.name)
+
+
+def on_display_grid(data):
+    """``data`` (DataArray or Dataset) itself on a latitude-longitude grid; fields on a model
+    grid (two-dimensional latitude and longitude) sampled onto a regular display grid, each
+    display cell taking the value of the nearest model cell within one spacing (missing
+    farther away: outside the model's domain). The spacing is the result's band width when
+    it has one (so that the display latitudes are its bands') or the model's nominal spacing.
+    For display only: every number is computed on the model's own cells."""
+    from ..geometry.curvilinear import CurvilinearGrid, find_curvilinear_coords
+
+    fields = [data] if isinstance(data, xr.DataArray) else list(data.data_vars.values())
+    model = [f for f in fields if find_curvilinear_coords(f) is not None]
+    if not model:
+        return data
+    grid = CurvilinearGrid.from_data(model[0])
+    names = find_curvilinear_coords(model[0])
+    dims = model[0][names[0]].dims
+    d = float(data.attrs.get("band_width_deg", grid.nominal_spacing))
+    bands = None
+    if isinstance(data, xr.Dataset) and "lat" in data.coords and data["lat"].ndim == 1:
+        bands = data["lat"].values  # the result's bands: one latitude axis for all
+    lat, lon, idx = _display_index(grid, d, bands)
+
+    if isinstance(data, xr.DataArray):
+        return _resampled(data, dims, lat, lon, idx)
+    out = {}
+    for name, f in data.data_vars.items():
+        if set(dims) <= set(f.dims):
+            out[name] = _resampled(f.drop_vars(names, errors="ignore"), dims, lat, lon, idx)
+        else:
+            out[name] = f
+    return xr.Dataset(out, attrs=dict(data.attrs))
+
+
 def canonical_2d(da: xr.DataArray, argname: str):
-    """(lat, lon, values, periodic) on ascending latitude and increasing longitude."""
+    """(lat, lon, values, periodic) on ascending latitude and increasing longitude; a field on
+    a model grid is shown on a regular display grid (:func:`on_display_grid`)."""
+    da = on_display_grid(da)
     lay = grid_layout(da, argname=argname)
     others = [d for d in da.dims if d not in (lay.lat_name, lay.lon_name)]
     if others:
@@ -71,6 +132,7 @@ def mask_like(mask: xr.DataArray, lat: np.ndarray, lon: np.ndarray, argname: str
     The mask may use another latitude order or longitude convention; its cells must be the
     field's cells.
     """
+    mask = on_display_grid(mask)
     ml = grid_layout(mask, argname=argname)
     m = to_canonical(mask, ml).transpose(ml.lat_name, ml.lon_name).values
     same_lat = ml.lat.shape == lat.shape and np.allclose(ml.lat, lat, atol=1e-6)

@@ -23,6 +23,7 @@ from ._inputs import (
     mask_like,
     ocean_across_band,
     ocean_of,
+    on_display_grid,
     pick,
     reduce_time,
     status_info,
@@ -110,7 +111,7 @@ def map_field(
     fig : matplotlib.figure.Figure
     ax : cartopy.mpl.geoaxes.GeoAxes
     """
-    da = reduce_time(require_dataarray(data, "data"), time, "data")
+    da = reduce_time(on_display_grid(require_dataarray(data, "data")), time, "data")
     w = figure_width(width)
     fs = fonts(w)
     with mpl.rc_context(rc(fs)):
@@ -146,10 +147,11 @@ def map_wind_stress(data, tauy=None, *, every=None, reference=None, time="mean",
     fig, ax
     """
     if isinstance(data, xr.Dataset):
+        data = on_display_grid(data)
         taux, tauy = pick(data, ("taux",), "data"), pick(data, ("tauy",), "data")
     else:
-        taux = require_dataarray(data, "taux")
-        tauy = require_dataarray(tauy, "tauy")
+        taux = on_display_grid(require_dataarray(data, "taux"))
+        tauy = on_display_grid(require_dataarray(tauy, "tauy"))
     taux = reduce_time(taux, time, "taux")
     tauy = reduce_time(tauy, time, "tauy")
     units = str(taux.attrs.get("units", "Pa"))
@@ -226,6 +228,7 @@ def map_ekman_pumping(data, *, equatorial_half_width=None, limits_poleward_of: f
     -------
     fig, ax
     """
+    data = on_display_grid(data)
     da = pick(data, ("ekman_pumping",), "data")
     ds = data if isinstance(data, xr.Dataset) else None
     band = equatorial_half_width_of(data if ds is not None else da, equatorial_half_width)
@@ -275,6 +278,7 @@ def map_sverdrup_streamfunction(data, *, boundary_zone_km: float = 300.0, time="
     -------
     fig, ax
     """
+    data = on_display_grid(data)
     psi = reduce_time(pick(data, ("sverdrup_streamfunction",), "data"), time,
                       "sverdrup_streamfunction")
     ds = data if isinstance(data, xr.Dataset) else xr.Dataset()
