@@ -116,6 +116,10 @@ def test_global_product_with_default_basins_has_no_row_across_two_oceans(marine_
     assert int(valid.sum()) > 100  # not vacuous: about 40 rows per basin
     assert float(span.where(valid).max()) <= 180.0
     assert not valid.sel(lat=slice(-61, -45)).any()
+    # The climatology's year-0 time axis (cftime) is written as a CF time coordinate, not as
+    # text labels, and the file passes the CF-1.8 check (IOOS compliance checker).
+    assert ds.interior_transport_by_time.dims == ("basin", "time", "lat")
+    assert cf_problems(tmp_path / "results.nc", monkeypatch) == []
 
 
 # --- figure options ------------------------------------------------------------------------------
@@ -357,7 +361,7 @@ def test_spread_refuses_a_users_folder_before_computing(small_winds, tmp_path, c
     assert (out / "spread.nc").read_text() == "my own spread"
 
 
-def test_model_grid_winds_run_from_the_command_line(tmp_path, capsys):
+def test_model_grid_winds_run_from_the_command_line(tmp_path, capsys, monkeypatch):
     # Issue 14 on the command line: winds on a tripolar model grid (the invented synthetic
     # world sampled onto it by nearest cell) give results on the model's own cells, the band
     # transports under the regular names, and the standard maps (drawn on a display grid).
@@ -391,6 +395,7 @@ def test_model_grid_winds_run_from_the_command_line(tmp_path, capsys):
     for name in ("wind_stress_map", "sverdrup_streamfunction_map",
                  "interior_transport_by_latitude"):
         assert (out / f"{name}.png").stat().st_size > 10_000
+    assert cf_problems(out / "results.nc", monkeypatch) == []  # IOOS compliance checker
     # A stratification needs rows of latitude: refused in one line before anything is written.
     code = main(["diagnose", str(path), "--out", str(tmp_path / "out2"), "--no-progress",
                  "--hydrography", str(path)])

@@ -47,6 +47,11 @@ def _prepare(ds: xr.Dataset) -> xr.Dataset:
     out.attrs.setdefault("title", "sverdrup_kit results: " + ", ".join(map(str, out.data_vars)))
     for name in list(out.data_vars):
         out[name] = out[name].transpose(*_cf_dimension_order(out, out[name].dims))
+    for name in out.dims:
+        # A time coordinate read without attributes still says what it is (CF-1.8 4.4).
+        if name in out.coords and (np.issubdtype(out[name].dtype, np.datetime64)
+                                   or _is_cftime(out[name])):
+            out[name].attrs = {"standard_name": "time", "axis": "T", **out[name].attrs}
     return _labels_as_auxiliary(out)
 
 
@@ -59,9 +64,26 @@ def _labels_as_auxiliary(ds: xr.Dataset) -> xr.Dataset:
     """
     renames = {}
     for dim in ds.dims:
-        if dim in ds.coords and ds[dim].dtype.kind in "OUS" and f"{dim}_name" not in ds.variables:
+        if dim in ds.coords and _is_text(ds[dim]) and f"{dim}_name" not in ds.variables:
             renames[dim] = f"{dim}_name"
     return ds.rename_vars(renames) if renames else ds
+
+
+def _is_text(coord: xr.DataArray) -> bool:
+    """Whether a coordinate holds text labels (object arrays also hold cftime dates, which
+    are times, not labels: a climatology's year-0 time axis is one)."""
+    if coord.dtype.kind in "US":
+        return True
+    return coord.dtype.kind == "O" and coord.size > 0 and all(
+        isinstance(v, str) for v in np.asarray(coord.values).ravel()[:8])
+
+
+def _is_cftime(var) -> bool:
+    """Whether ``var`` holds cftime dates (a climatology's year-0 or year-1 time axis)."""
+    if var.dtype.kind != "O" or var.size == 0:
+        return False
+    first = np.asarray(var.values).ravel()[0]
+    return type(first).__module__.split(".")[0] == "cftime"
 
 
 def _as_int32(var: xr.DataArray, name: str) -> xr.DataArray:
@@ -80,7 +102,7 @@ def _axis_of(ds: xr.Dataset, dim: str) -> str | None:
     """T, Z, Y or X for a dimension whose coordinate says so (axis or standard_name), else None."""
     if dim not in ds.coords:
         return None
-    if np.issubdtype(ds[dim].dtype, np.datetime64):
+    if np.issubdtype(ds[dim].dtype, np.datetime64) or _is_cftime(ds[dim]):
         return "T"
     attrs = ds[dim].attrs
     by_name = {"time": "T", "latitude": "Y", "longitude": "X", "depth": "Z", "height": "Z"}
@@ -146,7 +168,7 @@ def write_netcdf(ds: xr.Dataset, path: str | os.PathLike, *, compute: bool = Tru
         if name in out.coords:
             encoding.setdefault(name, {})["_FillValue"] = None
     for name, var in out.variables.items():
-        if np.issubdtype(var.dtype, np.datetime64):
+        if np.issubdtype(var.dtype, np.datetime64) or _is_cftime(var):
             # xarray would store whole-day times as int64, which CF-1.8 (section 2.2) lacks.
             encoding.setdefault(name, {})["dtype"] = "float64"
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)

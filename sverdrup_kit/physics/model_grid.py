@@ -38,6 +38,7 @@ import numpy as np
 import xarray as xr
 
 from .. import _validate, constants
+from .._apply import _bare
 from .._compiled.scan import fill_from_neighbours_numpy
 from .._compiled.stokes import band_sums, stokes_curl, westward_band_scan
 from ..errors import GridError, InputError
@@ -183,6 +184,7 @@ def model_grid_ekman(taux, tauy, *, grid=None, rho0: float = constants.RHO0,
                kwargs=dict(grid=grid))
     reason = (f"missing within {equatorial_half_width:g} degrees of the equator, where 1/f "
               "diverges and the Ekman balance fails")
+    ue, ve, w = (_bare(x) for x in (ue, ve, w))
     return xr.Dataset({
         "ekman_eastward_transport": ue.transpose(*taux.dims).assign_attrs(
             long_name="Ekman volume transport, eastward", units="m2 s-1", comment=reason),
@@ -342,6 +344,7 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
                                              "long_name": "centre of the latitude band"})}
     transport = transport.assign_coords(coords)
     curl, v, psi = (_grid_coords_apart(x) for x in (curl, v, psi))
+    transport = _bare(transport)
     ds = xr.Dataset({
         "wind_stress_curl": curl.transpose(*taux.dims).assign_attrs(
             long_name="wind stress curl", units="N m-3",
@@ -400,14 +403,21 @@ GRID_LAT, GRID_LON = "grid_lat", "grid_lon"
 
 
 def _grid_coords_apart(da: xr.DataArray) -> xr.DataArray:
-    """``da`` with its two-dimensional latitude and longitude named apart from the ``lat``
-    of the latitude bands (a Dataset holds one variable of each name)."""
+    """``da`` without attributes of its own (they came from the stress) and with its
+    two-dimensional latitude and longitude named apart from the ``lat`` of the latitude bands
+    (a Dataset holds one variable of each name), with their CF attributes."""
     from ..geometry.curvilinear import find_curvilinear_coords
 
+    da = _bare(da)
     names = find_curvilinear_coords(da)
     if names is None or not {"lat", "lon"} & set(names):
         return da
-    return da.rename({names[0]: GRID_LAT, names[1]: GRID_LON})
+    da = da.rename({names[0]: GRID_LAT, names[1]: GRID_LON})
+    for name, std, units in ((GRID_LAT, "latitude", "degrees_north"),
+                             (GRID_LON, "longitude", "degrees_east")):
+        da[name].attrs = {**da[name].attrs, "standard_name": std, "units": units,
+                          "long_name": f"{std} of the model grid's cell centres"}
+    return da
 
 
 def model_circulation(u, v, *, thickness=None, depth_dim=None, taux=None, tauy=None,
@@ -483,6 +493,8 @@ def model_circulation(u, v, *, thickness=None, depth_dim=None, taux=None, tauy=N
     coords = {"basin": np.array(names, dtype=object),
               "lat": ("lat", plan.band_lat, {"units": "degrees_north",
                                              "standard_name": "latitude"})}
+    V, psi = (_grid_coords_apart(x) for x in (V, psi))
+    transport = _bare(transport)
     ds = xr.Dataset({
         "model_northward_transport": V.assign_attrs(
             long_name="depth-integrated northward transport of the model", units="m2 s-1"),
