@@ -249,6 +249,7 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
                         continent_min_area_km2: float = CONTINENT_MIN_AREA,
                         min_width_km: float = MIN_WIDTH, fill_gaps: bool = True,
                         land_connectivity: int = 4, land_classes=None, seas=None,
+                        max_gyre_boundaries: int = 8, gyre_threshold_sv: float | None = None,
                         radius: float = constants.EARTH_RADIUS,
                         omega: float = constants.OMEGA) -> xr.Dataset:
     r"""Sverdrup transport on a curvilinear model grid, by basin and latitude band.
@@ -382,6 +383,16 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
             "long_name": "role of each cell (by its centre's band) in the band integral",
             **_flags(CELL_CLASS)}),
     }, coords=coords)
+    # Gyre boundaries between valid bands, as on regular grids.
+    from .sverdrup import GYRE_THRESHOLD_SV, boundaries_of, boundary_attrs
+
+    threshold = GYRE_THRESHOLD_SV if gyre_threshold_sv is None else gyre_threshold_sv
+    valid = xr.DataArray(plan.status == 0, dims=("basin", "lat"))
+    found = boundaries_of(ds["interior_transport"], valid, lat_name="lat", lat=plan.band_lat,
+                          max_gyre_boundaries=max_gyre_boundaries, threshold=threshold)
+    for (name, attrs), da in zip(boundary_attrs(threshold).items(), found):
+        ds[name] = _bare(da).assign_attrs(attrs)
+    ds.attrs["gyre_threshold_sv"] = threshold
     if geom.basins_used.startswith("earth"):
         ds["crossed_seas"] = (("basin", "lat"), plan.crossed_seas.astype(str), {
             "long_name": "named seas that the band's counted ocean crosses"})

@@ -96,6 +96,42 @@ def _boundaries_kernel(t, valid, *, lat, max_gyre_boundaries, threshold):
             *gyre_boundaries(t, valid, threshold=0.0, **kw))
 
 
+def boundaries_of(transport, valid, *, lat_name, lat, max_gyre_boundaries, threshold):
+    """Gyre boundaries of ``transport`` (..., basin, lat) between ``valid`` rows: those above
+    ``threshold`` (Sv on both sides) and every raw sign change, with their counts."""
+    return xr.apply_ufunc(
+        _boundaries_kernel, transport, valid,
+        input_core_dims=[["basin", lat_name], ["basin", lat_name]],
+        output_core_dims=[["basin", "gyre_boundary"], ["basin"]] * 2,
+        dask="parallelized",
+        output_dtypes=[np.float64, np.int64] * 2,
+        dask_gufunc_kwargs={"output_sizes": {"gyre_boundary": max_gyre_boundaries}},
+        kwargs=dict(lat=lat, max_gyre_boundaries=max_gyre_boundaries, threshold=threshold),
+    )
+
+
+def boundary_attrs(threshold):
+    """Attributes of gyre_boundary_lat/_count and raw_gyre_boundary_lat/_count."""
+    return {
+        "gyre_boundary_lat": dict(
+            long_name="latitude where the interior transport changes sign",
+            units="degrees_north", standard_name="latitude",
+            comment=f"sign changes where the interior transport reaches {threshold:g} Sv on "
+            "both sides, between valid rows only; every sign change is in "
+            "raw_gyre_boundary_lat"),
+        "gyre_boundary_count": dict(
+            long_name="number of sign changes of the interior transport", units="1",
+            comment="may exceed the length of the gyre_boundary dimension"),
+        "raw_gyre_boundary_lat": dict(
+            long_name="latitude of every sign change of the interior transport",
+            units="degrees_north", standard_name="latitude",
+            comment="between neighbouring valid rows, without the threshold of "
+            "gyre_boundary_lat"),
+        "raw_gyre_boundary_count": dict(
+            long_name="number of sign changes of the interior transport", units="1"),
+    }
+
+
 def _ocean_from(taux, tauy, ocean_mask, layout):
     if ocean_mask is not None:
         return _as_bool(_mask_on_grid(ocean_mask, taux, layout, "ocean_mask"), "ocean_mask")
@@ -322,6 +358,13 @@ def sverdrup_transport(
     allowing for island circulations. Geophys. Astrophys. Fluid Dyn. 45, 89-112.
     """
     taux = require_dataarray(taux, "taux")
+    if not (isinstance(max_gyre_boundaries, (int, np.integer)) and max_gyre_boundaries >= 1):
+        raise ValueError(
+            f"max_gyre_boundaries: expected a positive integer, found {max_gyre_boundaries!r}. "
+            "Fix: e.g. 8."
+        )
+    gyre_threshold_sv = _validate.number(gyre_threshold_sv, "gyre_threshold_sv",
+                                         sign="non-negative", units="1e6 m3 s-1", example=2.0)
     if is_curvilinear(taux):
         from .model_grid import model_grid_sverdrup
 
@@ -339,7 +382,8 @@ def sverdrup_transport(
             island_min_area_km2=island_min_area_km2,
             continent_min_area_km2=continent_min_area_km2, min_width_km=min_width_km,
             fill_gaps=fill_gaps, land_connectivity=land_connectivity,
-            land_classes=land_classes, seas=seas)
+            land_classes=land_classes, seas=seas, max_gyre_boundaries=max_gyre_boundaries,
+            gyre_threshold_sv=gyre_threshold_sv)
         if island_rule:
             ds.attrs["island_rule"] = (
                 "not applied: Godfrey's island rule is not available on model grids; the "
@@ -366,10 +410,6 @@ def sverdrup_transport(
         raise ValueError(
             f"continent_min_area_km2: expected a number of km2 >= island_min_area_km2 "
             f"({island_min_area_km2:g}), found {continent_min_area_km2!r}. Fix: e.g. 5e6."
-        )
-    if not (isinstance(max_gyre_boundaries, (int, np.integer)) and max_gyre_boundaries >= 1):
-        raise ValueError(
-            f"max_gyre_boundaries: expected a positive integer, found {max_gyre_boundaries!r}. Fix: e.g. 8."
         )
 
     grid0 = SphericalGrid.from_data(taux, argname="taux", radius=radius, omega=omega)
@@ -439,16 +479,9 @@ def sverdrup_transport(
                       np.int8(MOSTLY_FILLED), static).astype(np.int8)
     valid = status == VALID
 
-    crossings, count, raw_crossings, raw_count = xr.apply_ufunc(
-        _boundaries_kernel, transport, valid,
-        input_core_dims=[["basin", lat], ["basin", lat]],
-        output_core_dims=[["basin", "gyre_boundary"], ["basin"]] * 2,
-        dask="parallelized",
-        output_dtypes=[np.float64, np.int64] * 2,
-        dask_gufunc_kwargs={"output_sizes": {"gyre_boundary": max_gyre_boundaries}},
-        kwargs=dict(lat=grid.lat, max_gyre_boundaries=max_gyre_boundaries,
-                    threshold=gyre_threshold_sv),
-    )
+    crossings, count, raw_crossings, raw_count = boundaries_of(
+        transport, valid, lat_name=lat, lat=grid.lat, max_gyre_boundaries=max_gyre_boundaries,
+        threshold=gyre_threshold_sv)
 
     basin_bc = islands = None
     if island_rule:
@@ -516,6 +549,7 @@ def _quality(geometry, status, observed, raw_crossings, raw_count, lay, *, gyre_
     and the attributes that go with them."""
     lat, lon = lay.lat_name, lay.lon_name
     plan = geometry.plan
+    gyre = boundary_attrs(gyre_threshold_sv)
 
     def var(da, attrs):
         return xr.Variable(da.dims, da.data, attrs)
@@ -530,13 +564,8 @@ def _quality(geometry, status, observed, raw_crossings, raw_count, lay, *, gyre_
             comment="the rest was filled by nearest-ocean averaging (gaps, small "
             "islands); row_status is mostly_filled where its mean over the leading "
             f"dimensions is below {MIN_OBSERVED_FRACTION:g}")),
-        "raw_gyre_boundary_lat": var(raw_crossings, dict(
-            long_name="latitude of every sign change of the interior transport",
-            units="degrees_north",
-            comment="between neighbouring valid rows, without the threshold of "
-            "gyre_boundary_lat")),
-        "raw_gyre_boundary_count": var(raw_count, dict(
-            long_name="number of sign changes of the interior transport", units="1")),
+        "raw_gyre_boundary_lat": var(raw_crossings, gyre["raw_gyre_boundary_lat"]),
+        "raw_gyre_boundary_count": var(raw_count, gyre["raw_gyre_boundary_count"]),
         "land_class": xr.Variable((lat, lon), geometry.land.cls.copy(), {
             "long_name": "land class",
             "flag_values": np.arange(4, dtype=np.int8),
@@ -590,7 +619,7 @@ def _assemble(fields, plan, bid, names, lay, original, settings: _Settings, qual
     curl, v, psi = fields["curl"], fields["v"], fields["psi"]
     transport, crossings, count = fields["transport"], fields["crossings"], fields["count"]
     band = settings.equatorial_half_width
-    threshold = quality[1]["gyre_threshold_sv"]
+    gyre = boundary_attrs(quality[1]["gyre_threshold_sv"])
     lat, lon = lay.lat_name, lay.lon_name
     hw = (lat, lon)
     basin = xr.DataArray(np.array(names, dtype=object), dims=("basin",), name="basin",
@@ -632,17 +661,8 @@ def _assemble(fields, plan, bid, names, lay, original, settings: _Settings, qual
                 comment="minus the interior transport: the western boundary current returns "
                 "the interior flow, positive northward. " + empty,
             ),
-            "gyre_boundary_lat": _var(crossings,
-                long_name="latitude where the interior transport changes sign",
-                units="degrees_north",
-                comment=f"sign changes where the interior transport reaches {threshold:g} Sv on "
-                "both sides, between valid rows only; every sign change is in "
-                "raw_gyre_boundary_lat",
-            ),
-            "gyre_boundary_count": _var(count,
-                long_name="number of sign changes of the interior transport", units="1",
-                comment="may exceed the length of the gyre_boundary dimension",
-            ),
+            "gyre_boundary_lat": _var(crossings, **gyre["gyre_boundary_lat"]),
+            "gyre_boundary_count": _var(count, **gyre["gyre_boundary_count"]),
             "basin_id": (hw, bid.astype(np.int32), basin_id_attrs(names)),
             "integration_class": (hw, plan.cell_class, {
                 "long_name": "role of each cell in the westward integral",

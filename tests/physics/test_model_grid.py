@@ -374,6 +374,14 @@ def test_marine_climatology_on_a_rotated_model_grid(marine_climatology):
     d = np.abs(t_tri - t_reg).where(both)
     assert float(d.sel(lat=slice(-60, 60)).max()) < 0.1
     assert float(d.sel(basin="atlantic", lat=slice(60, 64)).max()) < 4.0
+    # Gyre boundaries (issue 10's 2 Sv threshold) on the model grid: south of 60N those of the
+    # regular grid (the scan is the same there).
+    for b in ("atlantic", "pacific", "indian"):
+        g_tri = tri.gyre_boundary_lat.sel(basin=b).values
+        g_reg = reg1.gyre_boundary_lat.sel(basin=b).values
+        g_tri, g_reg = (g[np.isfinite(g) & (g < 60)] for g in (g_tri, g_reg))
+        assert g_reg.size >= 2
+        np.testing.assert_allclose(g_tri, g_reg, atol=0.1)
 
 
 def test_ekman_pumping_on_a_regular_grid_as_model_grid():
@@ -641,3 +649,6 @@ def test_model_grid_result_keeps_its_coordinates_and_refuses_regular_only_option
     assert "not applied" in ds.attrs["island_rule"]
     with pytest.raises(sk.errors.InputError, match="relief: expected None on a model grid"):
         sk.sverdrup_transport(tx, 0 * tx, relief=tx)
+    with pytest.raises(sk.errors.InputError, match="gyre_threshold_sv"):
+        sk.sverdrup_transport(tx, 0 * tx, gyre_threshold_sv="2")
+    assert ds.gyre_boundary_lat.dims == ("basin", "gyre_boundary")
