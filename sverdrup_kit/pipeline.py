@@ -18,7 +18,7 @@ from .io import masks as _masks
 from .physics.ekman import DEFAULT_EQUATORIAL_HALF_WIDTH, ekman
 from .physics.stress import wind_stress
 from .physics.adjustment import adjustment_flags, averaging_period, rossby_adjustment
-from .physics.model_grid import GRID_LAT, GRID_LON
+from .physics.model_grid import grid_coords_apart
 from .physics.sverdrup import sverdrup_transport
 
 __all__ = ["OPEN_OCEAN_DEPTH", "diagnose", "first_mode_speed_on"]
@@ -331,9 +331,8 @@ def diagnose(
         stratification = "none: no Rossby-wave adjustment on a model grid"
         # The model grid's latitude and longitude take the names the Sverdrup result gives
         # them, apart from its latitude bands.
-        mean, ek = (x.rename({a: b for a, b in zip(find_curvilinear_coords(mean["taux"]),
-                                                  (GRID_LAT, GRID_LON)) if a in x.coords})
-                    for x in (mean, ek))
+        names = find_curvilinear_coords(mean["taux"])
+        mean, ek = (grid_coords_apart(x, names) for x in (mean, ek))
         out = xr.merge([mean, ek, sv], compat="override", combine_attrs="drop_conflicts")
     else:
         c1, stratification = _first_mode_on(first_mode_speed, mean["taux"])

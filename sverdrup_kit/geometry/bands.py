@@ -264,15 +264,17 @@ def plan_bands(grid, land: LandBodies, bid, n_basins, *, band_width=None,
     clat, _ = grid.corners_latlon
     corners = np.stack([clat[:-1, :-1], clat[:-1, 1:], clat[1:, 1:], clat[1:, :-1]])
     lo, hi = corners.min(axis=0).ravel(), corners.max(axis=0).ravel()
-    lo_band = np.clip(np.searchsorted(edges, lo, side="right") - 1, 0, nb - 1)
-    hi_band = np.clip(np.searchsorted(edges, hi, side="left") - 1, 0, nb - 1)
-    # A cell belongs to a band it overlaps by at least MEMBER_SHARE of its latitude extent
-    # (the round-off overlap of cells whose edges are the band's edges does not count).
+    # Every band each cell's latitude extent overlaps, at all (the sums below) ...
+    over_lo = np.clip(np.searchsorted(edges, lo, side="right") - 1, 0, nb - 1)
+    over_hi = np.clip(np.searchsorted(edges, hi, side="left") - 1, 0, nb - 1)
+    # ... and the bands whose runs it shapes: those it overlaps by at least MEMBER_SHARE of
+    # its latitude extent (the round-off overlap of cells whose edges are the band's edges
+    # does not count).
     ext_lat = np.maximum(hi - lo, 1e-12)
-    lo_in = np.minimum(edges[np.minimum(lo_band + 1, nb)], hi) - lo >= MEMBER_SHARE * ext_lat
-    hi_in = hi - np.maximum(edges[hi_band], lo) >= MEMBER_SHARE * ext_lat
-    lo_band = np.where(lo_in | (lo_band == band_of), lo_band, lo_band + 1)
-    hi_band = np.where(hi_in | (hi_band == band_of), hi_band, hi_band - 1)
+    lo_in = np.minimum(edges[np.minimum(over_lo + 1, nb)], hi) - lo >= MEMBER_SHARE * ext_lat
+    hi_in = hi - np.maximum(edges[over_hi], lo) >= MEMBER_SHARE * ext_lat
+    lo_band = np.where(lo_in | (over_lo == band_of), over_lo, over_lo + 1)
+    hi_band = np.where(hi_in | (over_hi == band_of), over_hi, over_hi - 1)
     n_over = np.maximum(hi_band, band_of) - np.minimum(lo_band, band_of) + 1
     cell_of = np.repeat(np.arange(lat.size), n_over)
     band_all = np.repeat(np.minimum(lo_band, band_of), n_over) + (
@@ -390,8 +392,6 @@ def plan_bands(grid, land: LandBodies, bid, n_basins, *, band_width=None,
 
     # Triplets: every integrated cell in every band its latitude extent overlaps.
     span = np.maximum(hi - lo, 1e-12)
-    first = np.clip(np.searchsorted(edges, lo, side="right") - 1, 0, nb - 1)
-    last = np.clip(np.searchsorted(edges, hi, side="left") - 1, 0, nb - 1)
     has_run = cell_run >= 0
     run_key = {}
     for k in range(R_b.size):
@@ -399,9 +399,9 @@ def plan_bands(grid, land: LandBodies, bid, n_basins, *, band_width=None,
     run_key = {key: np.asarray(v) for key, v in run_key.items()}
     c_all, r_all, w_all, f_all, d_all = [], [], [], [], []
     cand = np.flatnonzero(has_run | (water & (b_of >= 0)))
-    for off in range(int((last - first).max()) + 1 if cand.size else 0):
-        jj = first[cand] + off
-        use = jj <= last[cand]
+    for off in range(int((over_hi - over_lo).max()) + 1 if cand.size else 0):
+        jj = over_lo[cand] + off
+        use = jj <= over_hi[cand]
         c, jj = cand[use], jj[use]
         frac = (np.minimum(hi[c], edges[jj + 1]) - np.maximum(lo[c], edges[jj])) / span[c]
         keep = frac > 0

@@ -41,6 +41,18 @@ OBSERVED_BOUNDARY_CURRENTS = [
 ]
 
 
+def _of_basin(rows, basin):
+    """The table's rows of ``basin`` (all of them for None); an unknown basin is refused."""
+    if basin is None:
+        return rows
+    valid = sorted({r["basin"] for r in rows})
+    if basin not in valid:
+        raise ValueError(
+            f"basin: expected one of {valid}, found {basin!r}. Fix: pass one of those or None."
+        )
+    return [r for r in rows if r["basin"] == basin]
+
+
 def boundary_current_observations(basin: str | None = None) -> xr.Dataset:
     """Observed western boundary current transports as a Dataset along ``current``.
 
@@ -56,13 +68,7 @@ def boundary_current_observations(basin: str | None = None) -> xr.Dataset:
         ``basin``, ``source`` and ``note`` along dimension ``current``.
     """
     rows = OBSERVED_BOUNDARY_CURRENTS
-    if basin is not None:
-        valid = sorted({r["basin"] for r in rows})
-        if basin not in valid:
-            raise ValueError(
-                f"basin: expected one of {valid}, found {basin!r}. Fix: pass one of those or None."
-            )
-        rows = [r for r in rows if r["basin"] == basin]
+    rows = _of_basin(rows, basin)
     names = [r["name"] for r in rows]
 
     def col(key, **attrs):
@@ -148,13 +154,7 @@ def balance_section_observations(basin: str | None = None) -> xr.Dataset:
     not a transport of one current: 5-10 Sv more northward flow west of 137E than Sverdrup.
     """
     rows = OBSERVED_BALANCE_SECTIONS
-    if basin is not None:
-        valid = sorted({r["basin"] for r in rows})
-        if basin not in valid:
-            raise ValueError(
-                f"basin: expected one of {valid}, found {basin!r}. Fix: pass one of those or None."
-            )
-        rows = [r for r in rows if r["basin"] == basin]
+    rows = _of_basin(rows, basin)
 
     def col(key, **attrs):
         return xr.DataArray([r[key] for r in rows], dims="observation", attrs=attrs)

@@ -413,22 +413,28 @@ def model_grid_sverdrup(taux, tauy, *, ocean_mask=None, basins=None, grid=None,
 GRID_LAT, GRID_LON = "grid_lat", "grid_lon"
 
 
-def _grid_coords_apart(da: xr.DataArray) -> xr.DataArray:
-    """``da`` without attributes of its own (they came from the stress) and with its
-    two-dimensional latitude and longitude named apart from the ``lat`` of the latitude bands
-    (a Dataset holds one variable of each name), with their CF attributes."""
+def grid_coords_apart(obj, names=None):
+    """``obj`` (DataArray or Dataset) with the model grid's two-dimensional latitude and
+    longitude named apart from the ``lat`` of the latitude bands (a Dataset holds one variable
+    of each name), with their CF attributes. ``names``: the two coordinates' names (found by
+    their CF attributes when not given)."""
     from ..geometry.curvilinear import find_curvilinear_coords
 
-    da = _bare(da)
-    names = find_curvilinear_coords(da)
+    names = find_curvilinear_coords(obj) if names is None else names
     if names is None or not {"lat", "lon"} & set(names):
-        return da
-    da = da.rename({names[0]: GRID_LAT, names[1]: GRID_LON})
+        return obj
+    obj = obj.rename({names[0]: GRID_LAT, names[1]: GRID_LON})
     for name, std, units in ((GRID_LAT, "latitude", "degrees_north"),
                              (GRID_LON, "longitude", "degrees_east")):
-        da[name].attrs = {**da[name].attrs, "standard_name": std, "units": units,
-                          "long_name": f"{std} of the model grid's cell centres"}
-    return da
+        obj[name].attrs = {**obj[name].attrs, "standard_name": std, "units": units,
+                           "long_name": f"{std} of the model grid's cell centres"}
+    return obj
+
+
+def _grid_coords_apart(da: xr.DataArray) -> xr.DataArray:
+    """A native-grid output: no attributes of its own (they came from the stress), and the
+    grid's coordinates named apart from the bands (:func:`grid_coords_apart`)."""
+    return grid_coords_apart(_bare(da))
 
 
 def model_circulation(u, v, *, thickness=None, depth_dim=None, taux=None, tauy=None,

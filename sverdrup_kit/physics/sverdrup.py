@@ -551,21 +551,18 @@ def _quality(geometry, status, observed, raw_crossings, raw_count, lay, *, gyre_
     plan = geometry.plan
     gyre = boundary_attrs(gyre_threshold_sv)
 
-    def var(da, attrs):
-        return xr.Variable(da.dims, da.data, attrs)
-
     out = {
-        "row_status": var(status, dict(
-            long_name="status of the Sverdrup interior transport of each basin row",
-            **_flag_attrs(ROW_STATUS))),
-        "observed_fraction": var(observed, dict(
-            long_name="fraction of the row's counted cells with observed stress",
+        "row_status": _var(
+            status, long_name="status of the Sverdrup interior transport of each basin row",
+            **_flag_attrs(ROW_STATUS)),
+        "observed_fraction": _var(
+            observed, long_name="fraction of the row's counted cells with observed stress",
             units="1",
             comment="the rest was filled by nearest-ocean averaging (gaps, small "
             "islands); row_status is mostly_filled where its mean over the leading "
-            f"dimensions is below {MIN_OBSERVED_FRACTION:g}")),
-        "raw_gyre_boundary_lat": var(raw_crossings, gyre["raw_gyre_boundary_lat"]),
-        "raw_gyre_boundary_count": var(raw_count, gyre["raw_gyre_boundary_count"]),
+            f"dimensions is below {MIN_OBSERVED_FRACTION:g}"),
+        "raw_gyre_boundary_lat": _var(raw_crossings, **gyre["raw_gyre_boundary_lat"]),
+        "raw_gyre_boundary_count": _var(raw_count, **gyre["raw_gyre_boundary_count"]),
         "land_class": xr.Variable((lat, lon), geometry.land.cls.copy(), {
             "long_name": "land class",
             "flag_values": np.arange(4, dtype=np.int8),
